@@ -1,0 +1,175 @@
+import { sql } from 'drizzle-orm';
+import {
+  boolean,
+  doublePrecision,
+  index,
+  integer,
+  jsonb,
+  pgEnum,
+  pgTable,
+  primaryKey,
+  text,
+  timestamp,
+  uniqueIndex,
+  uuid,
+} from 'drizzle-orm/pg-core';
+
+/** Roles a member can hold in a lab. Kept in step with shared/schemas/roles.ts. */
+export const roleEnum = pgEnum('lab_role', ['analyst', 'manager', 'viewer']);
+
+export const labs = pgTable('labs', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  name: text('name').notNull(),
+  /** Demo labs are seeded with invented data and say so everywhere they are shown. */
+  isDemo: boolean('is_demo').notNull().default(false),
+  /** Lab policy: calibration ages, acceptance limits. Shape: shared/schemas/lab.ts labSettingsSchema. */
+  settings: jsonb('settings').notNull().default(sql`'{}'::jsonb`),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+});
+
+export const users = pgTable(
+  'users',
+  {
+    id: uuid('id').primaryKey().defaultRandom(),
+    email: text('email').notNull(),
+    displayName: text('display_name').notNull(),
+    /** Encoded hash string (algorithm and parameters included); null until an invitation is accepted. */
+    passwordHash: text('password_hash'),
+    disabledAt: timestamp('disabled_at', { withTimezone: true }),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [uniqueIndex('users_email_lower_idx').on(sql`lower(${t.email})`)],
+);
+
+export const memberships = pgTable(
+  'memberships',
+  {
+    labId: uuid('lab_id')
+      .notNull()
+      .references(() => labs.id, { onDelete: 'cascade' }),
+    userId: uuid('user_id')
+      .notNull()
+      .references(() => users.id, { onDelete: 'cascade' }),
+    role: roleEnum('role').notNull(),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [primaryKey({ columns: [t.labId, t.userId] }), index('memberships_user_idx').on(t.userId)],
+);
+
+/**
+ * A titration run. The id is made on the device (it is the idempotency key for sync).
+ * `setup` holds the run's plan as recorded (sample, titrant lot, calibrations chosen); `result` the last analysis.
+ */
+export const runs = pgTable(
+  'runs',
+  {
+    id: uuid('id').primaryKey(),
+    labId: uuid('lab_id')
+      .notNull()
+      .references(() => labs.id, { onDelete: 'cascade' }),
+    analystId: uuid('analyst_id')
+      .notNull()
+      .references(() => users.id),
+    sampleName: text('sample_name').notNull(),
+    status: text('status').notNull().default('recording'),
+    setup: jsonb('setup').notNull().default(sql`'{}'::jsonb`),
+    result: jsonb('result'),
+    notes: text('notes').notNull().default(''),
+    /** Server-assigned version of the editable metadata (notes, sample name, status). */
+    version: integer('version').notNull().default(1),
+    isDemo: boolean('is_demo').notNull().default(false),
+    deviceCreatedAt: timestamp('device_created_at', { withTimezone: true }),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+    updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
+    payloadHash: text('payload_hash'),
+  },
+  (t) => [index('runs_lab_created_idx').on(t.labId, t.createdAt), index('runs_lab_status_idx').on(t.labId, t.status)],
+);
+
+/**
+ * One tapped reading. Immutable once stored: a correction is a new row whose `replacesId` names the reading it
+ * corrects (kind 'correction') or withdraws (kind 'deletion'), with a reason.
+ */
+export const readings = pgTable(
+  'readings',
+  {
+    id: uuid('id').primaryKey(),
+    runId: uuid('run_id')
+      .notNull()
+      .references(() => runs.id, { onDelete: 'cascade' }),
+    labId: uuid('lab_id')
+      .notNull()
+      .references(() => labs.id, { onDelete: 'cascade' }),
+    kind: text('kind').notNull().default('reading'),
+    /** Seconds of run time (monotonic clock, pauses excluded) at the moment of the tap. */
+    timeS: doublePrecision('time_s').notNull(),
+    pH: doublePrecision('ph'),
+    mV: doublePrecision('mv'),
+    replacesId: uuid('replaces_id'),
+    reason: text('reason'),
+    deviceRecordedAt: timestamp('device_recorded_at', { withTimezone: true }),
+    receivedAt: timestamp('received_at', { withTimezone: true }).notNull().defaultNow(),
+    payloadHash: text('payload_hash'),
+  },
+  (t) => [index('readings_run_time_idx').on(t.runId, t.timeS)],
+);
+
+/** A burette reading noted during the run; the first one is the start reading. */
+export const checkpoints = pgTable(
+  'checkpoints',
+  {
+    id: uuid('id').primaryKey(),
+    runId: uuid('run_id')
+      .notNull()
+      .references(() => runs.id, { onDelete: 'cascade' }),
+    labId: uuid('lab_id')
+      .notNull()
+      .references(() => labs.id, { onDelete: 'cascade' }),
+    timeS: doublePrecision('time_s').notNull(),
+    buretteMl: doublePrecision('burette_ml').notNull(),
+    replacesId: uuid('replaces_id'),
+    reason: text('reason'),
+    deviceRecordedAt: timestamp('device_recorded_at', { withTimezone: true }),
+    receivedAt: timestamp('received_at', { withTimezone: true }).notNull().defaultNow(),
+    payloadHash: text('payload_hash'),
+  },
+  (t) => [index('checkpoints_run_idx').on(t.runId, t.timeS)],
+);
+
+/** Clock events of a run: start, pause (refill), resume, finish. */
+export const runEvents = pgTable(
+  'run_events',
+  {
+    id: uuid('id').primaryKey(),
+    runId: uuid('run_id')
+      .notNull()
+      .references(() => runs.id, { onDelete: 'cascade' }),
+    labId: uuid('lab_id')
+      .notNull()
+      .references(() => labs.id, { onDelete: 'cascade' }),
+    kind: text('kind').notNull(),
+    timeS: doublePrecision('time_s').notNull(),
+    detail: jsonb('detail'),
+    deviceRecordedAt: timestamp('device_recorded_at', { withTimezone: true }),
+    receivedAt: timestamp('received_at', { withTimezone: true }).notNull().defaultNow(),
+    payloadHash: text('payload_hash'),
+  },
+  (t) => [index('run_events_run_idx').on(t.runId, t.timeS)],
+);
+
+/** Append-only record of every change to lab data. The API offers no way to edit or delete it. */
+export const auditLog = pgTable(
+  'audit_log',
+  {
+    id: uuid('id').primaryKey().defaultRandom(),
+    labId: uuid('lab_id').references(() => labs.id, { onDelete: 'cascade' }),
+    actorId: uuid('actor_id').references(() => users.id),
+    action: text('action').notNull(),
+    entity: text('entity').notNull(),
+    entityId: text('entity_id'),
+    before: jsonb('before'),
+    after: jsonb('after'),
+    at: timestamp('at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index('audit_lab_at_idx').on(t.labId, t.at)],
+);

@@ -1,0 +1,2 @@
+// Every table of the Halfmark database. drizzle-kit reads this file; add new table files here.
+export * from './core';

@@ -1,0 +1,49 @@
+import request from 'supertest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { apiErrorSchema, healthSchema } from '../shared/schemas/api';
+import { createApp } from './app';
+import { closeTemplate, testDatabase } from './testing/db';
+import type { Database } from '../db/client';
+
+let database: Database;
+let app: ReturnType<typeof createApp>;
+
+beforeAll(async () => {
+  database = await testDatabase();
+  app = createApp({ database, log: () => {} });
+});
+afterAll(async () => {
+  await database.close();
+  await closeTemplate();
+});
+
+describe('foundation API', () => {
+  it('GET /api/health reports version and database kind', async () => {
+    const res = await request(app).get('/api/health').expect(200);
+    const body = healthSchema.parse(res.body);
+    expect(body.database).toBe(process.env.TEST_DATABASE_URL ? 'postgres' : 'pglite');
+    expect(body.version).toMatch(/^\d+\.\d+\.\d+/);
+  });
+
+  it('answers malformed JSON with 400 in the error shape, without a stack', async () => {
+    const res = await request(app).post('/api/health').set('content-type', 'application/json').send('{"a":');
+    expect(res.status).toBe(400);
+    const body = apiErrorSchema.parse(res.body);
+    expect(body.error.code).toBe('malformed_json');
+    expect(JSON.stringify(res.body)).not.toMatch(/at .*\.ts:\d+/);
+  });
+
+  it('answers an unknown API route with 404 in the error shape', async () => {
+    const res = await request(app).get('/api/no-such-thing').expect(404);
+    expect(apiErrorSchema.parse(res.body).error.code).toBe('no_such_route');
+  });
+
+  it('sends cross-origin isolation and security headers', async () => {
+    const res = await request(app).get('/api/health');
+    expect(res.headers['cross-origin-opener-policy']).toBe('same-origin');
+    expect(res.headers['cross-origin-embedder-policy']).toBe('require-corp');
+    expect(res.headers['cross-origin-resource-policy']).toBe('same-origin');
+    expect(res.headers['x-content-type-options']).toBe('nosniff');
+    expect(res.headers['content-security-policy']).toContain("default-src 'self'");
+  });
+});

@@ -1,0 +1,82 @@
+import { existsSync } from 'node:fs';
+import path from 'node:path';
+import compression from 'compression';
+import express, { type Express } from 'express';
+import helmet from 'helmet';
+import type { Database } from '../db/client';
+import { apiRouter } from './api';
+import { errorHandler, unknownApiRoute } from './http/errors';
+
+export interface AppDeps {
+  database: Database;
+  /** Folder of the static web export; omitted in API-only tests. */
+  webDir?: string;
+  demo?: boolean;
+  log?: (msg: string, err?: unknown) => void;
+}
+
+/** Builds the Express app; `listen` is the caller's business (server/main.ts), so tests drive it with supertest. */
+export function createApp(deps: AppDeps): Express {
+  const log = deps.log ?? ((msg, err) => console.error(`[halfmark] ${msg}`, err ?? ''));
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+
+  app.use(
+    helmet({
+      // The local SQLite database runs as wasm in a worker: it needs cross-origin isolation.
+      crossOriginOpenerPolicy: { policy: 'same-origin' },
+      crossOriginEmbedderPolicy: { policy: 'require-corp' },
+      crossOriginResourcePolicy: { policy: 'same-origin' },
+      contentSecurityPolicy: {
+        directives: {
+          defaultSrc: ["'self'"],
+          scriptSrc: ["'self'", "'wasm-unsafe-eval'"],
+          // react-native-web injects its style sheet at run time.
+          styleSrc: ["'self'", "'unsafe-inline'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          fontSrc: ["'self'", 'data:'],
+          workerSrc: ["'self'", 'blob:'],
+          connectSrc: ["'self'"],
+          manifestSrc: ["'self'"],
+          objectSrc: ["'none'"],
+          frameAncestors: ["'none'"],
+          upgradeInsecureRequests: null,
+        },
+      },
+    }),
+  );
+  app.use(compression());
+
+  app.use('/api', express.json({ limit: '2mb' }), apiRouter({ ...deps, log }), unknownApiRoute);
+
+  if (deps.webDir && existsSync(deps.webDir)) {
+    const webDir = deps.webDir;
+    app.use(
+      express.static(webDir, {
+        index: 'index.html',
+        setHeaders(res, filePath) {
+          // Hashed bundles never change; the shell and service worker must be revalidated.
+          if (/\/_expo\/static\//.test(filePath) || /\/assets\//.test(filePath)) {
+            res.setHeader('Cache-Control', 'public, max-age=31536000, immutable');
+          } else {
+            res.setHeader('Cache-Control', 'no-cache');
+          }
+        },
+      }),
+    );
+    // Single-page app: every other GET is the shell; the router decides what to show (including "not found").
+    app.get('/*splat', (req, res, next) => {
+      if (req.accepts('html')) {
+        res.setHeader('Cache-Control', 'no-cache');
+        res.sendFile(path.join(webDir, 'index.html'));
+      } else next();
+    });
+  }
+
+  app.use((_req, res) => {
+    res.status(404).json({ error: { code: 'not_found', message: 'Nothing here.' } });
+  });
+  app.use(errorHandler(log));
+  return app;
+}

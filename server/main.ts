@@ -1,0 +1,59 @@
+import type { Server } from 'node:http';
+import { openDatabase, type Database } from '../db/client';
+import { createApp } from './app';
+import { loadConfig } from './config';
+import { DEMO_LAB_NAME, DEMO_USERS, isEmpty, seedDemo } from './demo/seed';
+import { DataDirLockedError, lockDataDir } from './lock';
+
+async function main() {
+  const config = loadConfig();
+  let release: (() => void) | undefined;
+  let database: Database;
+  if (config.databaseUrl) {
+    database = await openDatabase({ kind: 'postgres', url: config.databaseUrl });
+  } else {
+    release = lockDataDir(config.dataDir);
+    database = await openDatabase({ kind: 'pglite', dataDir: config.dataDir });
+  }
+
+  let demo = false;
+  if (config.seedDemo && (await isEmpty(database))) {
+    await seedDemo(database);
+    demo = true;
+    console.log(`Seeded "${DEMO_LAB_NAME}". Demo sign-in (invented accounts, for trying Halfmark only):`);
+    for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(8)} ${u.email}  password: ${u.password}`);
+  }
+
+  const app = createApp({ database, webDir: config.webDir, demo });
+  const server: Server = app.listen(config.port, config.host, () => {
+    const where = config.databaseUrl ? 'PostgreSQL (DATABASE_URL)' : `PGlite in ${config.dataDir}`;
+    console.log(`Halfmark is serving on http://localhost:${(server.address() as { port: number }).port} (data: ${where})`);
+  });
+
+  let closing = false;
+  const shutdown = (signal: string) => {
+    if (closing) return;
+    closing = true;
+    console.log(`${signal}: closing Halfmark…`);
+    server.close();
+    server.closeAllConnections?.();
+    database
+      .close()
+      .catch((err) => console.error('closing the database failed', err))
+      .finally(() => {
+        release?.();
+        process.exit(0);
+      });
+  };
+  process.on('SIGINT', () => shutdown('SIGINT'));
+  process.on('SIGTERM', () => shutdown('SIGTERM'));
+}
+
+main().catch((err) => {
+  if (err instanceof DataDirLockedError) {
+    console.error(`Halfmark did not start: ${err.message}`);
+  } else {
+    console.error('Halfmark did not start:', err);
+  }
+  process.exit(1);
+});

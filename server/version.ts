@@ -1,0 +1,4 @@
+import { readFileSync } from 'node:fs';
+
+const pkg = JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')) as { version: string };
+export const VERSION: string = pkg.version;
