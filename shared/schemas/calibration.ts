@@ -165,3 +165,18 @@ export const electrodeCalibrationInputSchema = z.object({
   limits: electrodeLimitsSchema.optional(),
 });
 export type ElectrodeCalibrationInput = z.input<typeof electrodeCalibrationInputSchema>;
+
+// ---------- CLI / API request shapes ----------
+
+/** drip-rate request: a delivery, an array of them, or `{deliveries, maxRelSdPct?}` to also judge repeatability. */
+export const dripRateRequestSchema = z.union(
+  [
+    z.object({
+      deliveries: z.array(gravimetricReplicateSchema).min(1, 'give at least one delivery'),
+      maxRelSdPct: positive('maxRelSdPct', '%').optional(),
+    }),
+    gravimetricInputSchema,
+  ],
+  { error: 'expected a delivery {massG, durationS, waterTempC, ...}, an array of them, or {deliveries: [...]}' },
+);
+export type DripRateRequest = z.input<typeof dripRateRequestSchema>;
