@@ -1,3 +1,4 @@
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { drainRateAt, fitBuretteDrain } from './markTiming';
 
@@ -15,6 +16,24 @@ describe('mark-timing drain fit', () => {
     expect(r.rmseMl).toBeLessThan(1e-6);
     // Model identity: rate after V delivered is q0 (1 − V/Vh) → drop over 50 mL = 50/120.
     expect(r.dropPct).toBeCloseTo((100 * 50) / 120, 3);
+  });
+
+  it('converges over the range of bench burettes (property test, fast-check; self-consistency)', () => {
+    fc.assert(
+      fc.property(
+        fc.double({ min: 0.02, max: 0.5, noNaN: true }),
+        fc.double({ min: 60, max: 400, noNaN: true }),
+        fc.integer({ min: 4, max: 12 }),
+        (q0, vh, marks) => {
+          const readings = Array.from({ length: marks }, (_, i) => 0.5 + (i * 49) / (marks - 1));
+          const r = fitBuretteDrain({ points: drainTimes(q0, vh, readings) });
+          expect(r.model).toBe('drain');
+          expect(Math.abs(r.q0MlPerS / q0 - 1)).toBeLessThan(1e-5);
+          expect(Math.abs(r.drainVolumeMl! / vh - 1)).toBeLessThan(1e-4);
+        },
+      ),
+      { numRuns: 60, seed: 7 },
+    );
   });
 
   it('fitted rate falls with delivered volume like the raw interval rates (physics: flow falls with the head)', () => {
