@@ -1,0 +1,5 @@
+import { CalibrateScreen } from '../../src/features/calibrate/CalibrateScreen';
+
+export default function Route() {
+  return <CalibrateScreen />;
+}

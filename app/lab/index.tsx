@@ -1,0 +1,5 @@
+import { LabScreen } from '../../src/features/lab/LabScreen';
+
+export default function Route() {
+  return <LabScreen />;
+}

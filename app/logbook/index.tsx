@@ -1,0 +1,5 @@
+import { LogbookScreen } from '../../src/features/logbook/LogbookScreen';
+
+export default function Route() {
+  return <LogbookScreen />;
+}
