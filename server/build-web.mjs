@@ -1,6 +1,46 @@
-// Builds the web export into dist/ (expo export, offline). Used by `npm start` and the browser tests.
+// Builds the web export into dist/ (expo export, offline).
+//   node server/build-web.mjs            always build
+//   node server/build-web.mjs --if-stale build only when the app's sources changed since the last build
+// Used by `npm start` and by the browser tests.
 import { spawnSync } from 'node:child_process';
+import { createHash } from 'node:crypto';
+import { existsSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
+import path from 'node:path';
 
+const root = path.resolve(path.dirname(new URL(import.meta.url).pathname), '..');
+const dist = path.join(root, 'dist');
+const stampFile = path.join(dist, '.halfmark-build');
+const inputs = ['app', 'src', 'shared', 'assets', 'app.json', 'metro.config.js', 'package-lock.json', 'server/build-web.mjs'];
+
+function* files(p) {
+  const full = path.join(root, p);
+  if (!existsSync(full)) return;
+  const st = statSync(full);
+  if (st.isFile()) {
+    yield p;
+    return;
+  }
+  for (const name of readdirSync(full).sort()) {
+    if (name === 'node_modules' || name.endsWith('.test.ts')) continue;
+    yield* files(path.join(p, name));
+  }
+}
+
+function sourceStamp() {
+  const h = createHash('sha256');
+  for (const input of inputs) for (const f of files(input)) h.update(f).update('\0').update(readFileSync(path.join(root, f)));
+  return h.digest('hex');
+}
+
+const stamp = sourceStamp();
+if (process.argv.includes('--if-stale') && existsSync(stampFile) && readFileSync(stampFile, 'utf8') === stamp) {
+  console.log('Web export is up to date (dist/).');
+  process.exit(0);
+}
+
+console.log('Building the web export into dist/ (the first build takes a minute or two)…');
 const env = { ...process.env, EXPO_OFFLINE: '1', EXPO_NO_TELEMETRY: '1', EXPO_NO_DEPENDENCY_VALIDATION: '1', CI: '1' };
-const r = spawnSync('npx', ['expo', 'export', '-p', 'web', '--output-dir', 'dist'], { stdio: 'inherit', env });
-process.exit(r.status ?? 1);
+const r = spawnSync('npx', ['expo', 'export', '-p', 'web', '--output-dir', 'dist'], { stdio: 'inherit', env, cwd: root });
+if (r.status !== 0) process.exit(r.status ?? 1);
+
+writeFileSync(stampFile, stamp);

@@ -43,7 +43,7 @@ export function AppFrame({ children, status }: { children: ReactNode; status?: R
   if (wide) {
     return (
       <View style={styles.wideRoot}>
-        <View style={styles.rail} accessibilityRole="navigation" aria-label="Sections">
+        <View style={styles.rail} role="navigation" aria-label="Sections">
           <View style={styles.brand}>
             <Text variant="heading" tone="accent">
               Halfmark
@@ -62,7 +62,7 @@ export function AppFrame({ children, status }: { children: ReactNode; status?: R
       <View style={styles.main}>{children}</View>
       <View
         style={[styles.bar, { paddingBottom: Math.max(insets.bottom, space.xs) }]}
-        accessibilityRole="navigation"
+        role="navigation"
         aria-label="Sections"
       >
         {items}
