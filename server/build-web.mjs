@@ -4,7 +4,7 @@
 // Used by `npm start` and by the browser tests.
 import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { existsSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 
 const root = path.resolve(path.dirname(new URL(import.meta.url).pathname), '..');
@@ -31,6 +31,36 @@ function sourceStamp() {
   for (const input of inputs) for (const f of files(input)) h.update(f).update('\0').update(readFileSync(path.join(root, f)));
   return h.digest('hex');
 }
+
+// One build at a time in this folder (parallel test runs would otherwise write into one dist/ together).
+const lockDir = path.join(root, '.tmp', 'build-web.lock');
+mkdirSync(path.dirname(lockDir), { recursive: true });
+function alive(pid) {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch {
+    return false;
+  }
+}
+for (;;) {
+  try {
+    mkdirSync(lockDir);
+    writeFileSync(path.join(lockDir, 'pid'), String(process.pid));
+    break;
+  } catch {
+    let pid = 0;
+    try {
+      pid = Number(readFileSync(path.join(lockDir, 'pid'), 'utf8'));
+    } catch {
+      /* being written */
+    }
+    if (pid && !alive(pid)) rmSync(lockDir, { recursive: true, force: true });
+    else await new Promise((r) => setTimeout(r, 500));
+  }
+}
+const unlock = () => rmSync(lockDir, { recursive: true, force: true });
+process.on('exit', unlock);
 
 const stamp = sourceStamp();
 if (process.argv.includes('--if-stale') && existsSync(stampFile) && readFileSync(stampFile, 'utf8') === stamp) {
