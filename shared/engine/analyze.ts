@@ -136,11 +136,18 @@ export function analyzeRun(input: RunDocument, options: AnalyzeOptions = {}): An
   };
   const starts = [startFor(breaks[0].derivativeMl)];
   if (steps > 1 && steps !== breaks.length) starts.push(startFor(breaks[breaks.length - 1].derivativeMl / steps));
+  // fit from the start that fits best as it stands; try the others only when that fit stays poor
+  const fitOpts = { fitOffset: !!doc.fitElectrodeOffset };
+  if (starts.length > 1) {
+    const c0 = starts.map((s) => fitCurve(model, V, pH, w, s, { ...fitOpts, maxIterations: 0 }).weightedCost);
+    if (c0[1] < c0[0]) starts.reverse();
+  }
   let fit: FitOutput | null = null;
   for (const s of starts) {
-    const f = fitCurve(model, V, pH, w, s, { fitOffset: !!doc.fitElectrodeOffset });
+    const f = fitCurve(model, V, pH, w, s, fitOpts);
     if (!Number.isFinite(f.weightedCost) || !(f.ve1Ml > 0)) continue;
     if (!fit || f.weightedCost < fit.weightedCost) fit = f;
+    if (fit.converged && fit.rmse <= Math.max(0.02, 3 * noise)) break;
   }
   if (fit && (!fit.converged || !Number.isFinite(fit.uVe1Ml))) {
     warnings.push('the whole-curve fit did not converge: the equivalence points come from the derivative instead');
@@ -276,6 +283,8 @@ export function analyzeRun(input: RunDocument, options: AnalyzeOptions = {}): An
         const h = model.h;
         const oh = Math.pow(10, -pkw) / h;
         let why = 'check the readings around half-equivalence';
+        const near = (k: number) => k >= 0 && k < steps && Math.abs(fit!.pKa[k] - fit!.pKa[j - 1]) < 2.5;
+        if (near(j - 2) || near(j)) why = 'neighbouring pKa values are less than 2.5 apart, so the steps overlap and more than two forms of the acid coexist at half-equivalence';
         if (h > 0.02 * Ct) why = `[H+] there is ${fmt((100 * h) / Ct, 1)} % of the acid's concentration (a stronger or more dilute acid), so the acid and its base are not equal at half-equivalence`;
         else if (oh > 0.02 * Ct) why = `[OH−] there is ${fmt((100 * oh) / Ct, 1)} % of the acid's concentration (a very weak step), so the acid and its base are not equal at half-equivalence`;
         warnings.push(`step ${j}: the half-equivalence pH ${fmt(ph)} differs from the fitted pKa ${fmt(result.pKa[j - 1])} by ${fmt(diff)}: ${why}; the fit's value accounts for this`);

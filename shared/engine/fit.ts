@@ -110,7 +110,7 @@ export function fitCurve(
     const off = fitOffset ? par[n + 1] : 0;
     let cost = 0;
     for (let i = 0; i < N; i++) {
-      const ri = (model.pHAt(V[i], amount, off) - pH[i]) * sw[i];
+      const ri = (model.pHAt(V[i], amount, off, i) - pH[i]) * sw[i];
       out[i] = ri;
       cost += ri * ri;
       if (jac) {
@@ -137,6 +137,7 @@ export function fitCurve(
     for (let a = 0; a < P; a++) for (let b = 0; b < a; b++) JtJ[b * P + a] = JtJ[a * P + b];
   };
 
+  model.resetWarmStarts();
   let cost = evaluate(p, r, true);
   normal();
   let mu = 0;
@@ -177,7 +178,7 @@ export function fitCurve(
       normal();
       mu *= Math.max(1 / 3, 1 - Math.pow(2 * rho - 1, 3));
       nu = 2;
-      if (rel < 1e-15) { converged = true; it++; break; }
+      if (rel < 1e-12) { converged = true; it++; break; }
     } else {
       mu *= nu;
       nu *= 2;
@@ -191,7 +192,7 @@ export function fitCurve(
   const residuals: number[] = new Array(N);
   let ss = 0;
   for (let i = 0; i < N; i++) {
-    const ri = model.pHAt(V[i], Cb * p[n], fitOffset ? p[n + 1] : 0) - pH[i];
+    const ri = model.pHAt(V[i], Cb * p[n], fitOffset ? p[n + 1] : 0, i) - pH[i];
     residuals[i] = ri;
     ss += ri * ri;
   }

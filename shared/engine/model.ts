@@ -5,7 +5,7 @@
 // Conventions: with activity 'none' the measured pH is taken as −log10[H+] and the pKa's are the constants at the
 // run's ionic strength ("apparent"); with 'davies' the measured pH is −log10 a(H+) and the pKa's are thermodynamic
 // (I → 0), the concentration constants being recomputed from the ionic strength at every point.
-import { CARBONIC_PKA_25C, daviesA, daviesLogGamma, pKw as pKwAt } from './constants';
+import { CARBONIC_PKA_25C, daviesA, pKw as pKwAt } from './constants';
 
 export type Activity = 'davies' | 'none';
 const LN10 = Math.LN10;
@@ -24,7 +24,8 @@ export interface ModelSetup {
   pKw?: number;
 }
 
-/** Solver for one curve; holds its own scratch space so repeated evaluation does not allocate. */
+/** Solver for one curve; holds its own scratch space so repeated evaluation does not allocate. Constants are kept
+ * as plain numbers (not logarithms) so one point costs one exp per Newton step. */
 export class ChargeBalanceModel {
   readonly V0: number;
   readonly Cb: number;
@@ -33,9 +34,8 @@ export class ChargeBalanceModel {
   readonly activity: Activity;
   readonly A: number;
   n = 1;
-  private readonly logKT = new Float64Array(MAX_STEPS);
-  private readonly logKc = new Float64Array(MAX_STEPS);
-  private readonly lt = new Float64Array(MAX_STEPS + 1);
+  private readonly KT = new Float64Array(MAX_STEPS);
+  private readonly Kc = new Float64Array(MAX_STEPS);
   /** α_j of the analyte at the last solved point (fraction that has lost j protons). */
   readonly alpha = new Float64Array(MAX_STEPS + 1);
   // results of the last solve (read by the fit for its Jacobian)
@@ -45,10 +45,15 @@ export class ChargeBalanceModel {
   Ct = 0;
   ionicStrength = 0;
   logGamma1 = 0;
+  private readonly KwT: number;
+  private Kwc: number;
+  private ck1: number;
+  private ck2: number;
+  private readonly ck1T: number;
+  private readonly ck2T: number;
+  /** ionic strength the conditional constants were last computed for */
+  private condI = NaN;
   private ccAlpha1 = 0;
-  /** Conditional carbonic constants at the current ionic strength. */
-  private ck1 = Math.pow(10, -CARBONIC_PKA_25C[0]);
-  private ck2 = Math.pow(10, -CARBONIC_PKA_25C[1]);
   private ccAlpha2 = 0;
   private lastX = -7 * LN10;
 
@@ -60,177 +65,234 @@ export class ChargeBalanceModel {
     this.pKw = setup.pKw ?? pKwAt(t);
     this.activity = setup.activity ?? 'none';
     this.A = daviesA(t);
+    this.KwT = Math.pow(10, -this.pKw);
+    this.Kwc = this.KwT;
+    this.ck1T = Math.pow(10, -CARBONIC_PKA_25C[0]);
+    this.ck2T = Math.pow(10, -CARBONIC_PKA_25C[1]);
+    this.ck1 = this.ck1T;
+    this.ck2 = this.ck2T;
   }
 
   /** Set the acid's pKa's (thermodynamic with Davies, apparent without). */
   setPKa(pKa: ArrayLike<number>): void {
     if (pKa.length < 1 || pKa.length > MAX_STEPS) throw new RangeError(`the model takes 1 to ${MAX_STEPS} pKa values`);
     this.n = pKa.length;
-    for (let j = 0; j < this.n; j++) this.logKT[j] = -pKa[j];
+    for (let j = 0; j < this.n; j++) {
+      this.KT[j] = Math.pow(10, -pKa[j]);
+      this.Kc[j] = this.KT[j];
+    }
+    this.Kwc = this.KwT;
+    this.condI = NaN;
   }
 
-  /** pH at titrant volume V (mL) for `amountMmol` of acid; `offset` is added (electrode offset). */
-  pHAt(V: number, amountMmol: number, offset = 0): number {
+  private warmX = new Float64Array(0);
+  private warmI = new Float64Array(0);
+
+  /** pH at titrant volume V (mL) for `amountMmol` of acid; `offset` is added (electrode offset). `slot` (a reading's
+   * index) starts the solver from that reading's last solution, which a fit revisits with slightly changed
+   * parameters; the answer is the same to solver precision either way. */
+  pHAt(V: number, amountMmol: number, offset = 0, slot = -1): number {
+    if (slot >= 0) {
+      if (slot >= this.warmX.length) {
+        const nx = new Float64Array(Math.max(16, 2 * slot + 2)).fill(NaN);
+        nx.set(this.warmX);
+        const ni = new Float64Array(nx.length).fill(NaN);
+        ni.set(this.warmI);
+        this.warmX = nx;
+        this.warmI = ni;
+      }
+      if (Number.isFinite(this.warmX[slot])) {
+        this.lastX = this.warmX[slot];
+        this.ionicStrength = this.warmI[slot];
+      }
+      const r = this.pHCore(V, amountMmol, offset);
+      this.warmX[slot] = this.lastX;
+      this.warmI[slot] = this.ionicStrength;
+      return r;
+    }
+    return this.pHCore(V, amountMmol, offset);
+  }
+
+  /** Forget warm starts (e.g. before a fit from a new starting point, so results never depend on an earlier fit). */
+  resetWarmStarts(): void {
+    this.warmX.fill(NaN);
+    this.warmI.fill(NaN);
+  }
+
+  private pHCore(V: number, amountMmol: number, offset: number): number {
     const Vt = this.V0 + V;
     const Na = (this.Cb * V) / Vt;
     const Ct = amountMmol / Vt;
     const Cct = (this.Cc * V) / Vt;
     this.Ct = Ct;
     if (this.activity === 'none') {
-      this.setConditional(0);
-      this.solve(Na, Ct, Cct, this.pKw);
+      this.solve(Na, Ct, Cct);
       this.ionicStrength = this.currentI(Na, Ct, Cct);
       this.logGamma1 = 0;
     } else {
-      // Fixed point on the ionic strength: it changes little with h, so a few passes converge to machine precision.
-      let I = 0.5 * (Na + Na) + Ct * 0.5;
-      for (let it = 0; it < 30; it++) {
-        const lg1 = this.setConditional(I);
-        this.solve(Na, Ct, Cct, this.pKw + 2 * lg1);
+      // Newton on ln h with the ionic strength updated at every step (started from the last point's): I depends
+      // weakly on h, so both settle together in a few steps. If that does not settle, alternate full solves.
+      let I = this.ionicStrength > 0 ? this.ionicStrength : Na + 0.5 * Ct;
+      let x = this.lastX;
+      let ok = false;
+      for (let it = 0; it < 40; it++) {
+        this.setConditional(I);
+        const F = this.evalF(x, Na, Ct, Cct);
+        let dx = -F / this.dFdlnh;
+        if (dx > 3) dx = 3;
+        else if (dx < -3) dx = -3;
+        x += dx;
         const In = this.currentI(Na, Ct, Cct);
-        const done = Math.abs(In - I) <= 1e-13 * (1 + In);
+        const settled = Math.abs(dx) < 1e-10 && Math.abs(In - I) <= 1e-10 * In + 1e-18;
         I = In;
-        if (done) break;
+        if (settled) { ok = true; break; }
+      }
+      if (ok) {
+        this.setConditional(I);
+        this.evalF(x, Na, Ct, Cct);
+        this.lastX = x;
+      } else {
+        for (let it = 0; it < 60; it++) {
+          this.setConditional(I);
+          this.solve(Na, Ct, Cct);
+          const In = this.currentI(Na, Ct, Cct);
+          const done = Math.abs(In - I) <= 1e-13 * In + 1e-18;
+          I = In;
+          if (done) break;
+        }
       }
       this.ionicStrength = I;
-      this.logGamma1 = this.setConditional(I);
     }
     return -Math.log10(this.h) - this.logGamma1 + offset;
   }
 
-  /** Conditional (concentration) constants at ionic strength I; returns log10 γ(±1). */
-  private setConditional(I: number): number {
-    if (this.activity === 'none' || I <= 0) {
-      for (let j = 0; j < this.n; j++) this.logKc[j] = this.logKT[j];
-      this.ck1 = Math.pow(10, -CARBONIC_PKA_25C[0]);
-      this.ck2 = Math.pow(10, -CARBONIC_PKA_25C[1]);
-      return 0;
-    }
-    const A = this.A;
-    const lg1 = daviesLogGamma(1, I, A);
-    // H2CO3 ⇌ H+ + HCO3−: K1c = K1 / γ1²;  HCO3− ⇌ H+ + CO3²−: K2c = K2 / γ2
-    this.ck1 = Math.pow(10, -CARBONIC_PKA_25C[0] - 2 * lg1);
-    this.ck2 = Math.pow(10, -CARBONIC_PKA_25C[1] - daviesLogGamma(2, I, A));
+  /** Conditional (concentration) constants at ionic strength I by the Davies equation. With g = 10^(A·f(I)),
+   * f = √I/(1+√I) − 0.3 I: γ(z) = g^(−z²), so step j (charge j → j+1) has Kc = KT γ(j)/(γ(1) γ(j+1)) = KT g^(2j+2),
+   * Kw,c = Kw g², and carbonate K1c = K1 g², K2c = K2 g⁴. */
+  private setConditional(I: number): void {
+    if (I === this.condI) return;
+    this.condI = I;
+    const s = Math.sqrt(I);
+    const Af = this.A * (s / (1 + s) - 0.3 * I);
+    const g = Math.exp(Af * LN10);
+    const g2 = g * g;
+    let gp = g2;
     for (let j = 0; j < this.n; j++) {
-      // H(n−j)A^(j−) ⇌ H+ + H(n−j−1)A^((j+1)−): Kc = KT γ(j) / (γH γ(j+1))
-      this.logKc[j] = this.logKT[j] + daviesLogGamma(j, I, A) - lg1 - daviesLogGamma(j + 1, I, A);
+      this.Kc[j] = this.KT[j] * gp;
+      gp *= g;
     }
-    return lg1;
+    this.Kwc = this.KwT * g2;
+    this.ck1 = this.ck1T * g2;
+    this.ck2 = this.ck2T * g2 * g2;
+    this.logGamma1 = -Af;
   }
 
+  /** Ionic strength ½Σcz², rewritten with electroneutrality (h + Na = OH + Ct Σjα_j + Cc(α1c + 2α2c)) as
+   * h + Na + ½ Ct Σ j(j−1) α_j + Cc α2c: equal at the solution, and nearly independent of h, so the fixed point on
+   * I converges fast. */
   private currentI(Na: number, Ct: number, Cct: number): number {
     let s = 0;
-    for (let j = 1; j <= this.n; j++) s += j * j * this.alpha[j];
-    const oh = Math.pow(10, -this.pKwCond) / this.h;
-    return 0.5 * (this.h + Na + oh + Ct * s + Cct * (this.ccAlpha1 + 4 * this.ccAlpha2));
+    for (let j = 2; j <= this.n; j++) s += j * (j - 1) * this.alpha[j];
+    return this.h + Na + 0.5 * Ct * s + Cct * this.ccAlpha2;
   }
 
-  private pKwCond = 14;
-
   /** Newton in x = ln h, kept inside a shrinking bracket (F is strictly increasing in h). */
-  private solve(Na: number, Ct: number, Cct: number, pKwCond: number): void {
-    this.pKwCond = pKwCond;
-    const Kw = Math.pow(10, -pKwCond);
+  private solve(Na: number, Ct: number, Cct: number): void {
     let lo = -40 * LN10;
     let hi = 3 * LN10;
     let x = this.lastX;
     if (!(x > lo && x < hi)) x = -7 * LN10;
     for (let it = 0; it < 200; it++) {
-      const F = this.evalF(x, Na, Ct, Cct, Kw);
+      const F = this.evalF(x, Na, Ct, Cct);
       if (F > 0) hi = x;
       else lo = x;
-      let xn = x - F / this.dFdlnh;
+      let dx = -F / this.dFdlnh;
+      // a Newton step of more than ~1.3 pH overshoots on the exponential terms: clamp, then bisect if it leaves the bracket
+      if (dx > 3) dx = 3;
+      else if (dx < -3) dx = -3;
+      if (Math.abs(dx) < 1e-12) {
+        x += dx;
+        break;
+      }
+      let xn = x + dx;
       if (!(xn > lo && xn < hi)) xn = 0.5 * (lo + hi);
-      const dx = xn - x;
       x = xn;
-      if (Math.abs(dx) < 1e-13 || hi - lo < 1e-13) break;
+      if (hi - lo < 1e-12) break;
     }
-    this.evalF(x, Na, Ct, Cct, Kw);
+    this.evalF(x, Na, Ct, Cct);
     this.lastX = x;
   }
 
   /** F(ln h) = h + Na − Kw/h − Ct n̄ − Cc n̄c; also stores α, n̄ and dF/d ln h. */
-  private evalF(x: number, Na: number, Ct: number, Cct: number, Kw: number): number {
+  private evalF(x: number, Na: number, Ct: number, Cct: number): number {
     const h = Math.exp(x);
     this.h = h;
     const n = this.n;
-    const lh = x / LN10;
-    // log10 of t_j = h^(n−j) Π_{i≤j} K_i, scaled by the largest for stability
-    let acc = 0;
-    let mx = -Infinity;
-    for (let j = 0; j <= n; j++) {
-      if (j > 0) acc += this.logKc[j - 1];
-      const v = (n - j) * lh + acc;
-      this.lt[j] = v;
-      if (v > mx) mx = v;
-    }
-    let sum = 0;
-    for (let j = 0; j <= n; j++) {
-      const e = Math.pow(10, this.lt[j] - mx);
-      this.alpha[j] = e;
-      sum += e;
+    const al = this.alpha;
+    // α_j ∝ Π_{i≤j} Kc_i / h
+    let r = 1;
+    let sum = 1;
+    al[0] = 1;
+    for (let j = 1; j <= n; j++) {
+      r *= this.Kc[j - 1] / h;
+      al[j] = r;
+      sum += r;
     }
     let nbar = 0;
     let m2 = 0;
+    const inv = 1 / sum;
     for (let j = 0; j <= n; j++) {
-      const a = this.alpha[j] / sum;
-      this.alpha[j] = a;
+      const a = al[j] * inv;
+      al[j] = a;
       nbar += j * a;
       m2 += j * j * a;
     }
-    const varj = m2 - nbar * nbar;
     this.nbar = nbar;
     let cnbar = 0;
     let cvar = 0;
     if (Cct > 0) {
-      const k1 = this.ck1, k2 = this.ck2;
-      const t0 = h * h, t1 = h * k1, t2 = k1 * k2;
-      const s = t0 + t1 + t2;
+      const t1 = this.ck1 / h;
+      const t2 = t1 * (this.ck2 / h);
+      const s = 1 + t1 + t2;
       this.ccAlpha1 = t1 / s;
       this.ccAlpha2 = t2 / s;
       cnbar = this.ccAlpha1 + 2 * this.ccAlpha2;
       cvar = this.ccAlpha1 + 4 * this.ccAlpha2 - cnbar * cnbar;
-    } else {
-      this.ccAlpha1 = 0;
-      this.ccAlpha2 = 0;
     }
-    const oh = Kw / h;
-    this.dFdlnh = h + oh + Ct * varj + Cct * cvar;
+    const oh = this.Kwc / h;
+    this.dFdlnh = h + oh + Ct * (m2 - nbar * nbar) + Cct * cvar;
     return h + Na - oh - Ct * nbar - Cct * cnbar;
   }
 
-  /** ∂pH/∂pKa_k (k from 0) and ∂pH/∂amount at the last solved point, γ held fixed. */
+  /** ∂pH/∂pKa_k (k from 0) at the last solved point, activity coefficients held fixed. */
   dpHdpKa(k: number): number {
     let s = 0;
     for (let j = k + 1; j <= this.n; j++) s += this.alpha[j] * (j - this.nbar);
     return (this.Ct * s) / this.dFdlnh;
   }
+  /** ∂pH/∂(amount, mmol) at the last solved point V. */
   dpHdAmount(V: number): number {
     return -this.nbar / (this.V0 + V) / (LN10 * this.dFdlnh);
   }
 
-  /** Explicit volume at a given pH (de Levie's form V = V0 (Ca n̄ − Δ)/(Cb − Cc n̄c + Δ)); NaN where no volume
-   * ≥ 0 gives that pH. With Davies the ionic strength is iterated. */
+  /** Explicit volume at a given pH (de Levie's form V = V0 (Ca n̄ − Δ)/(Cb − Cc n̄c + Δ)); negative or non-finite
+   * where no volume gives that pH. With Davies the ionic strength is iterated. */
   volumeAtPH(pH: number, amountMmol: number): number {
     const Ca = amountMmol / this.V0;
     let V = 0;
     let I = 0;
-    for (let it = 0; it < 60; it++) {
-      const lg1 = this.setConditional(I);
-      const pKwC = this.pKw + 2 * lg1;
-      const h = Math.pow(10, -(pH + lg1)); // pH = −log10(γ h) → h = 10^(−pH)/γ
-      this.pKwCond = pKwC;
+    for (let it = 0; it < 100; it++) {
+      if (this.activity === 'davies') this.setConditional(I);
+      const h = Math.pow(10, -pH - this.logGamma1); // pH = −log10(γ h)
       const Vt = this.V0 + V;
-      this.evalF(Math.log(h), (this.Cb * V) / Vt, amountMmol / Vt, (this.Cc * V) / Vt, Math.pow(10, -pKwC));
-      const delta = h - Math.pow(10, -pKwC) / h;
+      this.evalF(Math.log(h), (this.Cb * V) / Vt, amountMmol / Vt, (this.Cc * V) / Vt);
+      const delta = h - this.Kwc / h;
       const cn = this.ccAlpha1 + 2 * this.ccAlpha2;
       const Vn = (this.V0 * (Ca * this.nbar - delta)) / (this.Cb - this.Cc * cn + delta);
-      if (this.activity === 'none') return Vn;
-      if (!(Vn >= 0) || !Number.isFinite(Vn)) return Vn;
+      if (this.activity === 'none' || !(Vn >= 0) || !Number.isFinite(Vn)) return Vn;
       const Vtn = this.V0 + Vn;
-      this.Ct = amountMmol / Vtn;
       const In = this.currentI((this.Cb * Vn) / Vtn, amountMmol / Vtn, (this.Cc * Vn) / Vtn);
-      const done = Math.abs(Vn - V) <= 1e-12 * (1 + Vn) && Math.abs(In - I) <= 1e-13;
+      const done = Math.abs(Vn - V) <= 1e-12 * (1 + Vn) && Math.abs(In - I) <= 1e-13 * In + 1e-18;
       V = Vn;
       I = In;
       if (done) break;
