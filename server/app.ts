@@ -5,6 +5,7 @@ import express, { type Express } from 'express';
 import helmet from 'helmet';
 import type { Database } from '../db/client';
 import { apiRouter } from './api';
+import type { AuthOptions } from './auth/context';
 import { errorHandler, unknownApiRoute } from './http/errors';
 
 export interface AppDeps {
@@ -13,6 +14,10 @@ export interface AppDeps {
   webDir?: string;
   demo?: boolean;
   log?: (msg: string, err?: unknown) => void;
+  /** Token secret, public URL for e-mail links, clock (server/auth/context.ts). */
+  auth?: AuthOptions;
+  /** The outbox worker, nudged after an invitation or reset commits (server/mail). */
+  mail?: { nudge(): void };
 }
 
 /** Builds the Express app; `listen` is the caller's business (server/main.ts), so tests drive it with supertest. */

@@ -4,6 +4,7 @@ import { createApp } from './app';
 import { loadConfig } from './config';
 import { DEMO_LAB_NAME, DEMO_USERS, isEmpty, seedDemo } from './demo/seed';
 import { DataDirLockedError, lockDataDir } from './lock';
+import { startMail } from './mail';
 
 async function main() {
   const config = loadConfig();
@@ -24,7 +25,17 @@ async function main() {
     for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(8)} ${u.email}  password: ${u.password}`);
   }
 
-  const app = createApp({ database, webDir: config.webDir, demo });
+  const log = (msg: string, err?: unknown) => console.error(`[halfmark] ${msg}`, err ?? '');
+  const mail = await startMail({ database, smtpUrl: process.env.SMTP_URL || undefined, from: process.env.MAIL_FROM, production: config.production, log });
+  if (mail.fakeSmtpPort) console.log(`E-mail is captured locally (no SMTP_URL): see ${config.publicUrl}/api/dev/mailbox`);
+  const app = createApp({
+    database,
+    webDir: config.webDir,
+    demo,
+    log,
+    mail: mail.outbox,
+    auth: { jwtSecret: config.jwtSecret, publicUrl: config.publicUrl, production: config.production },
+  });
   const server: Server = app.listen(config.port, config.host, () => {
     const where = config.databaseUrl ? 'PostgreSQL (DATABASE_URL)' : `PGlite in ${config.dataDir}`;
     console.log(`Halfmark is serving on http://localhost:${(server.address() as { port: number }).port} (data: ${where})`);
@@ -37,8 +48,10 @@ async function main() {
     console.log(`${signal}: closing Halfmark…`);
     server.close();
     server.closeAllConnections?.();
-    database
-      .close()
+    mail
+      .stop()
+      .catch((err) => console.error('stopping e-mail delivery failed', err))
+      .then(() => database.close())
       .catch((err) => console.error('closing the database failed', err))
       .finally(() => {
         release?.();

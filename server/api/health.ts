@@ -1,24 +1,23 @@
-import { Router } from 'express';
 import type { Health } from '../../shared/schemas/api';
-import type { AppDeps } from '../app';
+import { route } from '../http/routes';
 import { VERSION } from '../version';
 
-export function healthRoutes(deps: AppDeps): Router {
-  const router = Router();
-  router.get('/health', async (_req, res, next) => {
-    try {
-      await deps.database.query('select 1');
+export const healthRoutes = [
+  route({
+    method: 'get',
+    path: '/health',
+    access: 'public',
+    summary: 'Liveness: version and database kind.',
+    handler: async ({ app }) => {
+      await app.database.query('select 1');
       const body: Health = {
         status: 'ok',
         name: 'halfmark',
         version: VERSION,
-        database: deps.database.kind,
-        demo: Boolean(deps.demo),
+        database: app.database.kind,
+        demo: app.demo,
       };
-      res.json(body);
-    } catch (err) {
-      next(err);
-    }
-  });
-  return router;
-}
+      return body;
+    },
+  }),
+];

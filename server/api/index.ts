@@ -1,10 +1,22 @@
 import { Router } from 'express';
 import type { AppDeps } from '../app';
+import { createServerContext } from '../auth/context';
+import { mountRoutes, type RouteDef } from '../http/routes';
+import { devMailboxRoutes } from '../mail/dev-mailbox';
+import { authRoutes } from './auth';
 import { healthRoutes } from './health';
+import { labRoutes } from './labs';
 
-/** The JSON API. Each area adds its router here. */
+/**
+ * Every API route, declared with its access rule (server/http/routes.ts). Add an area's routes here; the route matrix
+ * test lists this array, so a route missing from its expectations fails the build.
+ */
+export const apiRoutes: RouteDef[] = [...healthRoutes, ...authRoutes, ...labRoutes, ...devMailboxRoutes];
+
+/** The JSON API. */
 export function apiRouter(deps: AppDeps & { log: NonNullable<AppDeps['log']> }): Router {
   const router = Router();
-  router.use(healthRoutes(deps));
+  const app = createServerContext(deps);
+  mountRoutes(router, apiRoutes.filter((r) => !(r.devOnly && app.production)), app);
   return router;
 }

@@ -12,10 +12,19 @@ function scrypt(password: string, salt: Buffer, keyLength: number, opts: ScryptO
   );
 }
 
+export interface ScryptCost {
+  N: number;
+  r: number;
+  p: number;
+  keyLength: number;
+  saltLength: number;
+}
+
 const maxmem = (N: number, r: number) => 128 * N * r * 2;
 
-export async function hashPassword(password: string): Promise<string> {
-  const { N, r, p, keyLength, saltLength } = SCRYPT_PARAMS;
+/** `params` other than the default is for test fixtures only (verification reads the cost from the stored hash). */
+export async function hashPassword(password: string, params: typeof SCRYPT_PARAMS | ScryptCost = SCRYPT_PARAMS): Promise<string> {
+  const { N, r, p, keyLength, saltLength } = params;
   const salt = randomBytes(saltLength);
   const key = await scrypt(password, salt, keyLength, { N, r, p, maxmem: maxmem(N, r) });
   return `scrypt$${N}$${r}$${p}$${salt.toString('base64url')}$${key.toString('base64url')}`;

@@ -1,0 +1,34 @@
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { HttpError } from '../http/errors';
+
+const listFile = path.join(path.dirname(fileURLToPath(import.meta.url)), 'common-passwords.txt');
+
+let common: Set<string> | undefined;
+function commonPasswords(): Set<string> {
+  common ??= new Set(
+    readFileSync(listFile, 'utf8')
+      .split(/\r?\n/)
+      .map((l) => l.trim().toLowerCase())
+      .filter((l) => l && !l.startsWith('#')),
+  );
+  return common;
+}
+
+export function isCommonPassword(password: string): boolean {
+  return commonPasswords().has(password.normalize('NFKC').trim().toLowerCase());
+}
+
+/**
+ * Length is checked by the shared zod schema; this adds the blocklist check (NIST SP 800-63B §3.1.1.2),
+ * plus refusing the account's own e-mail as its password.
+ */
+export function assertAcceptablePassword(password: string, email?: string): void {
+  const lower = password.trim().toLowerCase();
+  if (isCommonPassword(password) || (email && (lower === email.toLowerCase() || lower === email.split('@')[0].toLowerCase()))) {
+    throw new HttpError(400, 'weak_password', 'That password is one of the most commonly used ones. Choose another.', [
+      { path: 'password', message: 'That password is too common. Choose another.', code: 'weak_password' },
+    ]);
+  }
+}
