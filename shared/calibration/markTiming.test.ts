@@ -1,10 +1,12 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
+import { buildDeliveryMap } from '../engine';
+import { deliverySchema } from '../schemas/run-document';
 import { drainRateAt, fitBuretteDrain } from './markTiming';
 
-/** Times at which the drain model V(t) = Vh (1 − e^(−q0 t/Vh)) reaches each reading. */
+/** Times at which the drain model dB/dt = q0 (1 − B/Vh) (B = burette reading) reaches each reading from readings[0]. */
 const drainTimes = (q0: number, vh: number, readings: number[]) =>
-  readings.map((v) => ({ buretteMl: v, timeS: -(vh / q0) * Math.log(1 - (v - readings[0]) / vh) }));
+  readings.map((b) => ({ buretteMl: b, timeS: -(vh / q0) * Math.log((vh - b) / (vh - readings[0])) }));
 
 describe('mark-timing drain fit', () => {
   it('recovers q0 and Vh from noise-free data generated with the same model (self-consistency check only)', () => {
@@ -67,6 +69,24 @@ describe('mark-timing drain fit', () => {
     expect(r.dropPct).toBeCloseTo(33.4181248, 3);
     expect(r.residuals).toHaveLength(11);
     expect(r.residuals[0]).toBe(0);
+  });
+
+  it('burette-reading convention agrees with scipy curve_fit of B(t) = Vh − (Vh − B1) e^(−q0 t/Vh), B1 = 0.6 mL', () => {
+    // Same taps as above, readings shifted to start at 0.6 mL; scipy 1.17.1 fitted q0 and Vh directly.
+    const times = [0.0, 42.7, 86.0, 131.9, 178.5, 228.2, 279.0, 331.8, 387.9, 445.7, 507.1];
+    const r = fitBuretteDrain({ points: times.map((t, i) => ({ timeS: t, buretteMl: 0.6 + 5 * i })) });
+    expect(r.q0MlPerS).toBeCloseTo(0.120519108, 6);
+    expect(r.drainVolumeMl!).toBeCloseTo(150.257096, 2);
+    expect(r.uQ0).toBeCloseTo(1.37317029e-4, 7);
+    expect(r.uVh!).toBeCloseTo(0.944732495, 3);
+    expect(r.rateTopMlPerS).toBeCloseTo(0.120519108 * (1 - 0.6 / 150.257096), 6);
+  });
+
+  it('its delivery feeds the engine’s delivery map, which then reproduces the taps (interop with shared/engine)', () => {
+    const pts = drainTimes(0.11, 140, [1.2, 6, 11, 17, 24, 31, 38, 45]);
+    const r = fitBuretteDrain({ points: pts });
+    const map = buildDeliveryMap(deliverySchema.parse({ ...r.delivery, checkpoints: [pts[0]] }));
+    for (const p of pts) expect(map.volumeAt(p.timeS)).toBeCloseTo(p.buretteMl - pts[0].buretteMl, 4);
   });
 
   it('falls back to a constant rate with a note when the drop is not resolvable', () => {

@@ -1,20 +1,24 @@
 // Mark-timing calibration of a gravity burette's drain: the analyst taps as the meniscus passes chosen graduations.
-// Model (flow proportional to head, i.e. a laminar-resistance tip): dV/dt = q0 (1 − V/Vh), so the volume delivered
-// since the first tapped mark is V(t) = Vh (1 − e^(−q0 t / Vh)). Fitted by Levenberg–Marquardt (1944/1963).
+// Model (flow proportional to head, i.e. a laminar-resistance tip), in burette readings B (mL below the zero mark),
+// the convention of shared/engine/delivery.ts: dB/dt = q0 (1 − B/Vh), so from the first tapped mark (t1, B1)
+// B(t) = Vh − (Vh − B1) e^(−k (t − t1)), k = q0/Vh. Fitted by Levenberg–Marquardt (1944/1963).
 import { levenbergMarquardt } from 'ml-levenberg-marquardt';
 import { markTimingInputSchema, type MarkTimingInput } from '../schemas/calibration';
 import { parseInput } from './errors';
 
 export interface MarkTimingResult {
   model: 'drain' | 'constant';
-  /** Rate at the first tapped mark (mL/s). */
+  /** q0: flow at burette reading 0 mL (mL/s); the constant rate for 'constant'. */
   q0MlPerS: number;
   uQ0: number;
-  /** Vh: the volume that would drain before the flow stopped, measured from the first mark (mL); null for 'constant'. */
+  /** Vh: the burette reading at which the flow would stop (mL); null for 'constant'. */
   drainVolumeMl: number | null;
   uVh: number | null;
+  /** Flow at the first and last tapped marks (mL/s). */
   rateTopMlPerS: number;
   rateBottomMlPerS: number;
+  /** Ready for a run document's `delivery` (shared/schemas/run-document.ts). */
+  delivery: { rateMlPerS: number; uRateMlPerS: number; drainVolumeMl?: number };
   /** How much the rate falls from the first to the last tapped mark, % of the first. */
   dropPct: number;
   /** Observed − fitted delivered volume at each point, in input order (the first, the reference, is 0). */
@@ -41,7 +45,9 @@ function inv2(a: number, b: number, d: number): [number, number, number] | null 
   return [d / det, -b / det, a / det];
 }
 
-function constantRate(x: number[], y: number[], notes: string[]): Omit<MarkTimingResult, 'residuals' | 'rmseMl'> & { fit: (t: number) => number } {
+type FitCore = Omit<MarkTimingResult, 'residuals' | 'rmseMl' | 'delivery'> & { fit: (t: number) => number };
+
+function constantRate(x: number[], y: number[], notes: string[]): FitCore {
   // Line through the reference point: q = Σxy / Σx², u(q) = s/√Σx².
   const sxx = x.reduce((s, v) => s + v * v, 0);
   const q = x.reduce((s, v, i) => s + v * y[i], 0) / sxx;
@@ -53,7 +59,7 @@ function constantRate(x: number[], y: number[], notes: string[]): Omit<MarkTimin
   };
 }
 
-/** Fit the drain model to mark-timing taps `{timeS, buretteMl}[]` (first point = reference, ≥ 4 points). */
+/** Fit the drain model to mark-timing taps `{timeS, buretteMl}[]` (the first point is the reference; ≥ 4 points). */
 export function fitBuretteDrain(input: MarkTimingInput): MarkTimingResult {
   const { points } = parseInput(markTimingInputSchema, input);
   const t0 = points[0].timeS;
@@ -89,16 +95,19 @@ export function fitBuretteDrain(input: MarkTimingInput): MarkTimingResult {
       errorTolerance: 1e-16,
     },
   );
+  // Rate at the first mark and k = q0/Vh; shifted to the burette-reading convention at the end.
   const q0 = (fitted.parameterValues[0] * Y) / T;
   const k = fitted.parameterValues[1] / T;
 
   const notes: string[] = [];
   const residualsOf = (f: (t: number) => number) => [0, ...x.map((xi, i) => y[i] - f(xi))];
-  const finish = (r: ReturnType<typeof constantRate>): MarkTimingResult => {
+  const finish = (r: FitCore): MarkTimingResult => {
     const { fit, ...rest } = r;
     const residuals = residualsOf(fit);
     const rmseMl = Math.sqrt(residuals.slice(1).reduce((s, e) => s + e * e, 0) / m);
-    return { ...rest, residuals, rmseMl };
+    const delivery: MarkTimingResult['delivery'] = { rateMlPerS: r.q0MlPerS, uRateMlPerS: r.uQ0 };
+    if (r.drainVolumeMl !== null) delivery.drainVolumeMl = r.drainVolumeMl;
+    return { ...rest, delivery, residuals, rmseMl };
   };
 
   if (!Number.isFinite(q0) || !Number.isFinite(k)) {
@@ -130,14 +139,18 @@ export function fitBuretteDrain(input: MarkTimingInput): MarkTimingResult {
     return finish(constantRate(x, y, notes));
   }
 
-  const Vh = q0 / k;
-  const uVh = Math.abs(Vh) * Math.sqrt(Math.max(0, (uQ / q0) ** 2 + (uK / k) ** 2 - (2 * cQK) / (q0 * k)));
-  const rateBottom = q0 * Math.exp(-k * T); // = q0 (1 − V(T)/Vh)
+  // From the first mark the drain has q0/k mL left to run, so Vh (reading) = B1 + q0/k and the flow at reading 0
+  // is k·Vh = q0 + k·B1; u by first-order propagation with the fit's covariance.
+  const vhFromMark = q0 / k;
+  const uVh = Math.abs(vhFromMark) * Math.sqrt(Math.max(0, (uQ / q0) ** 2 + (uK / k) ** 2 - (2 * cQK) / (q0 * k)));
+  const qZero = q0 + k * v0;
+  const uQZero = Math.sqrt(Math.max(0, uQ * uQ + v0 * v0 * uK * uK + 2 * v0 * cQK));
+  const rateBottom = q0 * Math.exp(-k * T); // = q0 (1 − delivered/vhFromMark)
   return finish({
     model: 'drain',
-    q0MlPerS: q0,
-    uQ0: uQ,
-    drainVolumeMl: Vh,
+    q0MlPerS: qZero,
+    uQ0: uQZero,
+    drainVolumeMl: v0 + vhFromMark,
     uVh,
     rateTopMlPerS: q0,
     rateBottomMlPerS: rateBottom,
@@ -147,7 +160,7 @@ export function fitBuretteDrain(input: MarkTimingInput): MarkTimingResult {
   });
 }
 
-/** Drain rate (mL/s) after `deliveredMl` from the first mark, from a drain-model fit. */
-export function drainRateAt(fit: Pick<MarkTimingResult, 'q0MlPerS' | 'drainVolumeMl'>, deliveredMl: number): number {
-  return fit.drainVolumeMl === null ? fit.q0MlPerS : fit.q0MlPerS * (1 - deliveredMl / fit.drainVolumeMl);
+/** Flow (mL/s) at burette reading `buretteMl`, from a mark-timing fit. */
+export function drainRateAt(fit: Pick<MarkTimingResult, 'q0MlPerS' | 'drainVolumeMl'>, buretteMl: number): number {
+  return fit.drainVolumeMl === null ? fit.q0MlPerS : fit.q0MlPerS * (1 - buretteMl / fit.drainVolumeMl);
 }
