@@ -126,7 +126,8 @@ export const checkpoints = pgTable(
       .notNull()
       .references(() => labs.id, { onDelete: 'cascade' }),
     timeS: doublePrecision('time_s').notNull(),
-    buretteMl: doublePrecision('burette_ml').notNull(),
+    /** Null only on a withdrawal (a row with replacesId that takes the checkpoint back). */
+    buretteMl: doublePrecision('burette_ml'),
     replacesId: uuid('replaces_id'),
     reason: text('reason'),
     deviceRecordedAt: timestamp('device_recorded_at', { withTimezone: true }),
