@@ -2,3 +2,4 @@
 export * from './core';
 export * from './auth';
 export * from './sync';
+export * from './calibrations';
