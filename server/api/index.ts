@@ -6,12 +6,13 @@ import { devMailboxRoutes } from '../mail/dev-mailbox';
 import { authRoutes } from './auth';
 import { healthRoutes } from './health';
 import { labRoutes } from './labs';
+import { syncRoutes } from './sync';
 
 /**
  * Every API route, declared with its access rule (server/http/routes.ts). Add an area's routes here; the route matrix
  * test lists this array, so a route missing from its expectations fails the build.
  */
-export const apiRoutes: RouteDef[] = [...healthRoutes, ...authRoutes, ...labRoutes, ...devMailboxRoutes];
+export const apiRoutes: RouteDef[] = [...healthRoutes, ...authRoutes, ...labRoutes, ...syncRoutes, ...devMailboxRoutes];
 
 /** The JSON API. */
 export function apiRouter(deps: AppDeps & { log: NonNullable<AppDeps['log']> }): Router {

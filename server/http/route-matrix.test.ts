@@ -1,6 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { randomUUID } from 'node:crypto';
 import type { Router } from 'express';
+import { runs } from '../../db/schema';
 import { apiRouter, apiRoutes } from '../api';
+import { calibrationMatrix } from '../api/calibrations.matrix';
 import { authFixture, TEST_PASSWORD, type AuthFixture } from '../auth/test-fixture';
 import { closeTemplate } from '../testing/db';
 import { describeRoute, type RouteDef } from './routes';
@@ -118,7 +121,27 @@ const matrix: Record<string, Expectation> = {
     own: MANAGER_ONLY,
     other: MEMBER_ONLY_OTHER,
   },
+  ...calibrationMatrix,
+  // Sync: push is open to any signed-in user; each change is checked against the caller's lab role inside the batch
+  // (a viewer's run comes back 200 with that change "rejected", see server/services/sync.test.ts).
+  'POST /sync/push': {
+    request: (_fx, lab) => ({ body: { deviceId: randomUUID(), sentAt: Date.now(), changes: [{ id: randomUUID(), kind: 'run', seq: 1, recordedAt: Date.now(), payload: { labId: lab.id, sampleName: 'matrix run' } }] } }),
+    own: { signedOut: 401, analyst: 200, manager: 200, viewer: 200 },
+  },
+  'GET /sync/pull': { request: () => ({}), own: { signedOut: 401, analyst: 200, manager: 200, viewer: 200 } },
+  'GET /runs/:runId/live': {
+    request: async (fx, lab) => ({ params: { runId: await matrixRun(fx, lab.id) } }),
+    own: { signedOut: 401, analyst: 200, manager: 200, viewer: 200 },
+    other: MEMBER_ONLY_OTHER,
+  },
 };
+
+/** A run in the lab, inserted directly (its analyst: lab A's analyst, or lab B's manager). */
+async function matrixRun(fx: AuthFixture, labId: string): Promise<string> {
+  const analystId = labId === fx.labA.id ? fx.people.analyst.id : fx.people.managerB.id;
+  const [r] = await fx.database.db.insert(runs).values({ id: randomUUID(), labId, analystId, sampleName: 'matrix run' }).returning();
+  return r.id;
+}
 
 function fillPath(path: string, params: Record<string, string> = {}): string {
   return path.replace(/:(\w+)/g, (_m, name: string) => {

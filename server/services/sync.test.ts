@@ -1,0 +1,254 @@
+import { count, eq, inArray } from 'drizzle-orm';
+import { v7 } from 'uuid';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Database } from '../../db/client';
+import { checkpoints, devices, readings, runClockFlags, runMetaHistory, runs } from '../../db/schema';
+import { CLOCK_FLAG_MS, pushRequestSchema } from '../../shared/schemas/sync';
+import { closeTemplate, testDatabase } from '../testing/db';
+import { canonicalJson, pull, push } from './sync';
+import { fakeDevice, syncWorld } from './sync.testkit';
+
+let database: Database;
+let w: Awaited<ReturnType<typeof syncWorld>>;
+
+beforeAll(async () => {
+  database = await testDatabase();
+  w = await syncWorld(database);
+});
+afterAll(async () => {
+  await database.close();
+  await closeTemplate();
+});
+
+const runPayload = (labId: string, extra: object = {}) => ({ labId, sampleName: 'KHP demo sample', setup: { titrant: 'NaOH 0.1 M' }, ...extra });
+
+describe('canonical payload hash', () => {
+  it('ignores key order but not values', () => {
+    expect(canonicalJson({ b: 1, a: { d: [1, 2], c: null } })).toBe(canonicalJson({ a: { c: null, d: [1, 2] }, b: 1 }));
+    expect(canonicalJson({ a: 1 })).not.toBe(canonicalJson({ a: 2 }));
+  });
+});
+
+describe('push', () => {
+  it('accepts a run and its readings, answers a replay "duplicate" and a changed payload 409, stored row untouched', async () => {
+    const analyst = await w.member(w.labA.id, 'analyst');
+    const dev = fakeDevice();
+    const run = dev.change('run', runPayload(w.labA.id));
+    const r1 = dev.change('reading', { runId: run.id, timeS: 12.5, pH: 3.41 });
+    const first = await push(w.deps, analyst, dev.batch([run, r1]));
+    expect(first.results.map((r) => r.outcome)).toEqual(['accepted', 'accepted']);
+    expect(first.lastSeq).toBe(2);
+
+    const replay = await push(w.deps, analyst, dev.batch([run, r1]));
+    expect(replay.results.map((r) => r.outcome)).toEqual(['duplicate', 'duplicate']);
+
+    const changed = { ...r1, payload: { runId: run.id, timeS: 12.5, pH: 9.99 } };
+    const again = await push(w.deps, analyst, dev.batch([changed]));
+    expect(again.results[0]).toMatchObject({ outcome: 'conflict', status: 409 });
+    const [stored] = await database.db.select().from(readings).where(eq(readings.id, r1.id));
+    expect(stored.pH).toBe(3.41);
+  });
+
+  it('rejects a bad change with its reason and still takes the rest of the batch', async () => {
+    const analyst = await w.member(w.labA.id, 'analyst');
+    const dev = fakeDevice();
+    const run = dev.change('run', runPayload(w.labA.id));
+    const bad = dev.change('reading', { runId: run.id, timeS: 3, pH: 42 });
+    const noValue = dev.change('reading', { runId: run.id, timeS: 4 });
+    const good = dev.change('reading', { runId: run.id, timeS: 5, pH: 4.2 });
+    const orphan = dev.change('reading', { runId: v7(), timeS: 6, pH: 4.3 });
+    const res = await push(w.deps, analyst, dev.batch([run, bad, noValue, good, orphan]));
+    expect(res.results.map((r) => r.outcome)).toEqual(['accepted', 'rejected', 'rejected', 'accepted', 'rejected']);
+    expect(res.results[1].reason).toMatch(/pH/);
+    expect(res.results[2].reason).toMatch(/pH or an mV/);
+    expect(res.results[4]).toMatchObject({ status: 404 });
+    expect(res.lastSeq).toBe(5);
+  });
+
+  it('refuses writes a role does not allow: a viewer, another lab, an analyst on a colleague’s run', async () => {
+    const viewer = await w.member(w.labA.id, 'viewer');
+    const analyst = await w.member(w.labA.id, 'analyst');
+    const colleague = await w.member(w.labA.id, 'analyst');
+    const dev = fakeDevice();
+    const res = await push(w.deps, viewer, dev.batch([dev.change('run', runPayload(w.labA.id))]));
+    expect(res.results[0]).toMatchObject({ outcome: 'rejected', status: 403 });
+    const other = await push(w.deps, analyst, dev.batch([dev.change('run', runPayload(w.labB.id))]));
+    expect(other.results[0]).toMatchObject({ outcome: 'rejected', status: 403 });
+
+    const d2 = fakeDevice();
+    const run = d2.change('run', runPayload(w.labA.id));
+    await push(w.deps, analyst, d2.batch([run]));
+    const d3 = fakeDevice();
+    const sneak = await push(w.deps, colleague, d3.batch([d3.change('reading', { runId: run.id, timeS: 1, pH: 7 })]));
+    expect(sneak.results[0]).toMatchObject({ outcome: 'rejected', status: 403 });
+  });
+
+  it('refuses a new record under a sequence number the device has already passed', async () => {
+    const analyst = await w.member(w.labA.id, 'analyst');
+    const devId = v7();
+    const run = { id: v7(), kind: 'run' as const, seq: 10, recordedAt: Date.now(), payload: runPayload(w.labA.id) };
+    expect((await push(w.deps, analyst, { deviceId: devId, sentAt: Date.now(), changes: [run] })).lastSeq).toBe(10);
+    const late = { id: v7(), kind: 'reading' as const, seq: 7, recordedAt: Date.now(), payload: { runId: run.id, timeS: 1, pH: 5 } };
+    const res = await push(w.deps, analyst, { deviceId: devId, sentAt: Date.now(), changes: [late] });
+    expect(res.results[0]).toMatchObject({ outcome: 'out_of_order', status: 409 });
+    expect(res.lastSeq).toBe(10);
+    expect(await database.db.select().from(readings).where(eq(readings.id, late.id))).toEqual([]);
+    // Within one batch, decreasing numbers do not pass validation at all.
+    const parsed = pushRequestSchema.safeParse({ deviceId: devId, sentAt: 1, changes: [{ ...run, seq: 12 }, { ...late, seq: 11 }] });
+    expect(parsed.success).toBe(false);
+  });
+
+  it('keeps readings immutable: a correction and a withdrawal are new rows pointing at the original', async () => {
+    const analyst = await w.member(w.labA.id, 'analyst');
+    const dev = fakeDevice();
+    const run = dev.change('run', runPayload(w.labA.id));
+    const r = dev.change('reading', { runId: run.id, timeS: 30, pH: 5.5 });
+    const c = dev.change('checkpoint', { runId: run.id, timeS: 31, buretteMl: 12.3 });
+    const fix = dev.change('correction', { of: 'reading', runId: run.id, replacesId: r.id, reason: 'typed 5.5 for 5.05', pH: 5.05 });
+    const back = dev.change('correction', { of: 'checkpoint', runId: run.id, replacesId: c.id, reason: 'read the wrong mark', withdraw: true });
+    const wrongRun = dev.change('correction', { of: 'reading', runId: v7(), replacesId: r.id, reason: 'x', pH: 1 });
+    const res = await push(w.deps, analyst, dev.batch([run, r, c, fix, back, wrongRun]));
+    expect(res.results.map((x) => x.outcome)).toEqual(['accepted', 'accepted', 'accepted', 'accepted', 'accepted', 'rejected']);
+    const rows = await database.db.select().from(readings).where(eq(readings.runId, run.id));
+    expect(rows.find((x) => x.id === r.id)?.pH).toBe(5.5);
+    expect(rows.find((x) => x.id === fix.id)).toMatchObject({ kind: 'correction', replacesId: r.id, pH: 5.05, timeS: 30 });
+    const cps = await database.db.select().from(checkpoints).where(eq(checkpoints.runId, run.id));
+    expect(cps.find((x) => x.id === back.id)).toMatchObject({ buretteMl: null, replacesId: c.id });
+    expect(cps.find((x) => x.id === c.id)?.buretteMl).toBe(12.3);
+  });
+});
+
+describe('replays of one batch', () => {
+  async function batchOf(n: number) {
+    const analyst = await w.member(w.labA.id, 'analyst');
+    const dev = fakeDevice();
+    const run = dev.change('run', runPayload(w.labA.id));
+    const rs = Array.from({ length: n }, (_, i) => dev.change('reading', { runId: run.id, timeS: i, pH: 3 + i / 100 }));
+    return { analyst, batch: dev.batch([run, ...rs]), ids: rs.map((r) => r.id), runId: run.id };
+  }
+  const rowsPerId = async (ids: string[]) =>
+    (await database.db.select({ n: count() }).from(readings).where(inArray(readings.id, ids)))[0].n;
+
+  it('in sequence: exactly one row per id, later replays all "duplicate"', async () => {
+    const { analyst, batch, ids } = await batchOf(50);
+    const outcomes = [];
+    for (let i = 0; i < 4; i++) outcomes.push((await push(w.deps, analyst, batch)).results.map((r) => r.outcome));
+    expect(outcomes[0].every((o) => o === 'accepted')).toBe(true);
+    for (const o of outcomes.slice(1)) expect(o.every((x) => x === 'duplicate')).toBe(true);
+    expect(await rowsPerId(ids)).toBe(50);
+  });
+
+  it(`concurrently (${process.env.TEST_DATABASE_URL ? 'PostgreSQL server' : 'PGlite'}): exactly one row per id, each accepted once`, async () => {
+    const { analyst, batch, ids, runId } = await batchOf(50);
+    const all = await Promise.all(Array.from({ length: 6 }, () => push(w.deps, analyst, batch)));
+    const acceptedPerId = new Map<string, number>();
+    for (const res of all) for (const r of res.results) if (r.outcome === 'accepted') acceptedPerId.set(r.id, (acceptedPerId.get(r.id) ?? 0) + 1);
+    expect([...acceptedPerId.values()].every((n) => n === 1)).toBe(true);
+    expect(acceptedPerId.size).toBe(51);
+    for (const res of all) expect(res.results.every((r) => r.outcome === 'accepted' || r.outcome === 'duplicate')).toBe(true);
+    expect(await rowsPerId(ids)).toBe(50);
+    expect((await database.db.select().from(runs).where(eq(runs.id, runId))).length).toBe(1);
+  });
+});
+
+describe('editable metadata', () => {
+  it('two devices edit the same run’s notes offline: the first to arrive wins, the other is kept in history, both told', async () => {
+    const analyst = await w.member(w.labA.id, 'analyst');
+    const phone = fakeDevice();
+    const tablet = fakeDevice();
+    const run = phone.change('run', runPayload(w.labA.id, { notes: 'start' }));
+    await push(w.deps, analyst, phone.batch([run]));
+    const [{ version }] = await database.db.select({ version: runs.version }).from(runs).where(eq(runs.id, run.id));
+
+    const a = phone.change('run_meta_edit', { runId: run.id, field: 'notes', value: 'bubble in the burette tip', baseVersion: version });
+    const b = tablet.change('run_meta_edit', { runId: run.id, field: 'notes', value: 'electrode rinsed twice', baseVersion: version });
+    const ra = await push(w.deps, analyst, phone.batch([a]));
+    const rb = await push(w.deps, analyst, tablet.batch([b]));
+    expect(ra.results[0].meta).toMatchObject({ winner: 'device', conflict: false, value: 'bubble in the burette tip', version: version + 1 });
+    expect(rb.results[0].meta).toMatchObject({ winner: 'server', conflict: true, value: 'bubble in the burette tip', version: version + 1 });
+
+    const hist = await database.db.select().from(runMetaHistory).where(eq(runMetaHistory.runId, run.id));
+    expect(hist.map((h) => [h.value, h.outcome]).sort()).toEqual([
+      ['bubble in the burette tip', 'applied'],
+      ['electrode rinsed twice', 'conflict'],
+    ]);
+    // The colleague who lost sees it when pulling: the conflicting edit is a change of its own.
+    const pulled = await pull(w.deps, analyst, { cursor: 0, limit: 5000, runId: run.id });
+    const edits = pulled.changes.filter((c) => c.entity === 'run_meta_edit').map((c) => (c.record as { outcome: string }).outcome);
+    expect(edits.sort()).toEqual(['applied', 'conflict']);
+
+    // An edit on top of the new version goes in; a different field never conflicts with notes.
+    const c = tablet.change('run_meta_edit', { runId: run.id, field: 'notes', value: 'electrode rinsed twice; bubble cleared', baseVersion: version + 1 });
+    const s = tablet.change('run_meta_edit', { runId: run.id, field: 'sampleName', value: 'KHP lot 7', baseVersion: version });
+    const rc = await push(w.deps, analyst, tablet.batch([c, s]));
+    expect(rc.results.map((r) => r.meta?.winner)).toEqual(['device', 'device']);
+    const [final] = await database.db.select().from(runs).where(eq(runs.id, run.id));
+    expect(final).toMatchObject({ notes: 'electrode rinsed twice; bubble cleared', sampleName: 'KHP lot 7', version: version + 3 });
+  });
+
+  it('a device cannot set review statuses', async () => {
+    const analyst = await w.member(w.labA.id, 'analyst');
+    const dev = fakeDevice();
+    const run = dev.change('run', runPayload(w.labA.id));
+    const res = await push(w.deps, analyst, dev.batch([run, dev.change('run_meta_edit', { runId: run.id, field: 'status', value: 'approved', baseVersion: 1 })]));
+    expect(res.results[1]).toMatchObject({ outcome: 'rejected', status: 422 });
+  });
+});
+
+describe('clocks', () => {
+  it('a device clock days off: accepted and ordered by server sequence as usual, the offset flagged on the run', async () => {
+    const analyst = await w.member(w.labA.id, 'analyst');
+    const dev = fakeDevice();
+    const skew = -3 * 86_400_000;
+    const deviceNow = w.nowMs() + skew;
+    const run = dev.change('run', runPayload(w.labA.id), { recordedAt: deviceNow });
+    // Device wall times run backwards across these readings; their order must come from the server, not from them.
+    const rs = [0, 1, 2].map((i) => dev.change('reading', { runId: run.id, timeS: i * 10, pH: 3 + i }, { recordedAt: deviceNow - i * 60_000 }));
+    const res = await push(w.deps, analyst, dev.batch([run, ...rs], deviceNow));
+    expect(res.results.every((r) => r.outcome === 'accepted')).toBe(true);
+    expect(res.clockFlagged).toBe(true);
+    expect(res.clockOffsetMs).toBeCloseTo(skew, -3);
+    const [flag] = await database.db.select().from(runClockFlags).where(eq(runClockFlags.runId, run.id));
+    expect(Math.abs(flag.offsetMs)).toBeGreaterThan(CLOCK_FLAG_MS);
+    const [device] = await database.db.select().from(devices).where(eq(devices.id, dev.id));
+    expect(device.clockOffsetMs).toBeCloseTo(skew, -3);
+    const stored = await database.db.select().from(readings).where(eq(readings.runId, run.id));
+    expect(stored.map((r) => r.deviceRecordedAt?.getTime()).sort()).toEqual(rs.map((r) => r.recordedAt).sort());
+
+    const pulled = await pull(w.deps, analyst, { cursor: 0, limit: 5000, runId: run.id });
+    expect(pulled.changes.filter((c) => c.entity === 'reading').map((c) => (c.record as { id: string }).id)).toEqual(rs.map((r) => r.id));
+    const runRec = pulled.changes.find((c) => c.entity === 'run')!.record as { clockOffsetMs: number | null };
+    expect(runRec.clockOffsetMs).toBeCloseTo(skew, -3);
+  });
+
+  it('a device clock a few seconds off is not flagged', async () => {
+    const analyst = await w.member(w.labA.id, 'analyst');
+    const dev = fakeDevice();
+    const res = await push(w.deps, analyst, dev.batch([dev.change('run', runPayload(w.labA.id))], w.nowMs() + 4000));
+    expect(res.clockFlagged).toBe(false);
+  });
+});
+
+describe('pull', () => {
+  it('returns only the caller’s labs, after the cursor, and pages', async () => {
+    const a = await w.member(w.labA.id, 'analyst');
+    const colleague = await w.member(w.labA.id, 'viewer');
+    const outsider = await w.member(w.labB.id, 'manager');
+    const start = (await pull(w.deps, colleague, { cursor: 0, limit: 5000 })).cursor;
+    const dev = fakeDevice();
+    const run = dev.change('run', runPayload(w.labA.id));
+    const rs = Array.from({ length: 5 }, (_, i) => dev.change('reading', { runId: run.id, timeS: i, pH: 4 }));
+    await push(w.deps, a, dev.batch([run, ...rs]));
+
+    const p1 = await pull(w.deps, colleague, { cursor: start, limit: 4 });
+    expect(p1.more).toBe(true);
+    const p2 = await pull(w.deps, colleague, { cursor: p1.cursor, limit: 4 });
+    expect(p2.more).toBe(false);
+    const ids = [...p1.changes, ...p2.changes].map((c) => (c.record as { id: string }).id);
+    expect(ids).toEqual([run.id, ...rs.map((r) => r.id)]);
+    expect((await pull(w.deps, colleague, { cursor: p2.cursor, limit: 10 })).changes).toEqual([]);
+
+    const theirs = await pull(w.deps, outsider, { cursor: start, limit: 5000 });
+    expect(theirs.changes.filter((c) => (c.record as { runId?: string; id: string }).id === run.id)).toEqual([]);
+  });
+});

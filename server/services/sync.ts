@@ -1,0 +1,512 @@
+import { createHash } from 'node:crypto';
+import type { z } from 'zod';
+import {
+  CLOCK_FLAG_MS,
+  payloadSchemas,
+  type Change,
+  type ChangeResult,
+  type EntityKind,
+  type MetaField,
+  type MetaResolution,
+  type PullResponse,
+  type PulledChange,
+  type PushRequest,
+  type PushResponse,
+} from '../../shared/schemas/sync';
+import type { Role } from '../../shared/schemas/roles';
+import type { Database } from '../../db/client';
+import type { Executor } from '../repos/executor';
+import * as repo from '../repos/sync';
+
+/**
+ * Sync: push (device outbox → server) and pull (lab changes → device).
+ *
+ * Push rules, all inside one transaction per batch that also records the device's last accepted sequence number:
+ * - The record id is the idempotency key. Inserts use ON CONFLICT DO NOTHING; a replay with the same canonical
+ *   payload hash is "duplicate" (already have it), a different payload under a known id is "conflict" (409) and the
+ *   stored row is left as it was.
+ * - A new record whose sequence number is at or below the device's last accepted one is refused (out_of_order).
+ * - A change that can never be accepted (bad payload, no permission, unknown run or target) is "rejected" with a
+ *   reason; it does not stop the rest of the batch.
+ * - Readings and checkpoints are never updated: corrections are new rows pointing at what they replace.
+ * - Metadata edits name the run version they were made on; an edit of a field that changed on the server since then
+ *   is a conflict: the value already on the server stays, the edit is kept in run_meta_history, and the response says
+ *   which won. Resolution is by arrival order at the server, never by device clocks.
+ * - The device's clock offset is estimated from its send time at each push; a large one flags the runs it touched.
+ */
+
+export interface SyncCaller {
+  userId: string;
+  roleIn(labId: string): Role | undefined;
+  labs: { labId: string }[];
+}
+
+export interface SyncDeps {
+  database: Database;
+  now: () => Date;
+}
+
+/** NOTIFY channel of the live hub; payload "runId:seq". */
+export const LIVE_CHANNEL = 'halfmark_live';
+
+const WRITE_ROLES: readonly Role[] = ['analyst', 'manager'];
+
+/** JSON with object keys sorted at every level, so equal payloads hash equally whatever the key order. */
+export function canonicalJson(value: unknown): string {
+  if (value === null || typeof value !== 'object') return JSON.stringify(value) ?? 'null';
+  if (Array.isArray(value)) return `[${value.map(canonicalJson).join(',')}]`;
+  const obj = value as Record<string, unknown>;
+  const keys = Object.keys(obj)
+    .filter((k) => obj[k] !== undefined)
+    .sort();
+  return `{${keys.map((k) => `${JSON.stringify(k)}:${canonicalJson(obj[k])}`).join(',')}}`;
+}
+
+export function payloadHash(kind: EntityKind, payload: unknown): string {
+  return createHash('sha256').update(`${kind}\n${canonicalJson(payload)}`).digest('hex');
+}
+
+type Parsed<K extends EntityKind> = z.infer<(typeof payloadSchemas)[K]>;
+
+interface Item {
+  change: Change;
+  index: number;
+  hash?: string;
+  data?: unknown;
+  /** seq at or below the device's last accepted: may only be a replay of a stored record. */
+  replayOnly: boolean;
+}
+
+const result = (c: Change, outcome: ChangeResult['outcome'], status: number, reason?: string, meta?: MetaResolution): ChangeResult => ({
+  id: c.id,
+  seq: c.seq,
+  outcome,
+  status,
+  ...(reason ? { reason } : {}),
+  ...(meta ? { meta } : {}),
+});
+
+function zodReason(err: z.ZodError): string {
+  return err.issues.map((i) => (i.path.length ? `${i.path.join('.')}: ${i.message}` : i.message)).join('; ');
+}
+
+const dateOrNull = (ms: number | undefined) => (ms === undefined ? null : new Date(ms));
+
+const META_COLUMN: Record<MetaField, 'notes' | 'sampleName' | 'status'> = { notes: 'notes', sampleName: 'sampleName', status: 'status' };
+
+export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest): Promise<PushResponse> {
+  const receivedAt = deps.now();
+  const clockOffsetMs = req.sentAt - receivedAt.getTime();
+  const clockFlagged = Math.abs(clockOffsetMs) > CLOCK_FLAG_MS;
+
+  return deps.database.db.transaction(async (tx) => {
+    await repo.lockSync(tx);
+    const device = await repo.lockDevice(tx, req.deviceId, caller.userId);
+    const results: ChangeResult[] = new Array(req.changes.length);
+    const log: repo.ChangeLogRow[] = [];
+    const touchedRuns = new Set<string>();
+    let lastLab: string | null = null;
+
+    // Parse every payload first; a bad one is answered here and the rest go on.
+    const items: Item[] = [];
+    req.changes.forEach((change, index) => {
+      const schema = payloadSchemas[change.kind];
+      const parsed = schema.safeParse(change.payload);
+      if (!parsed.success) {
+        results[index] = result(change, 'rejected', 422, zodReason(parsed.error));
+        return;
+      }
+      items.push({ change, index, data: parsed.data, hash: payloadHash(change.kind, parsed.data), replayOnly: change.seq <= device.lastSeq });
+    });
+    const answer = (it: Item, outcome: ChangeResult['outcome'], status: number, reason?: string, meta?: MetaResolution) => {
+      results[it.index] = result(it.change, outcome, status, reason, meta);
+    };
+    const byKind = (k: EntityKind) => items.filter((i) => i.change.kind === k);
+
+    /** Replays: "already have it" when the hash matches, 409 otherwise; a new id under an old seq is out of order. */
+    async function settleExisting(table: repo.RowTable | 'run_meta_edit' | 'submission', list: Item[]) {
+      const stored = await repo.storedHashes(tx, table, list.map((i) => i.change.id));
+      const fresh: Item[] = [];
+      for (const it of list) {
+        if (stored.has(it.change.id)) {
+          if (stored.get(it.change.id) === it.hash) answer(it, 'duplicate', 200);
+          else answer(it, 'conflict', 409, 'A different record is already stored under this id; it was left unchanged.');
+        } else if (it.replayOnly) {
+          answer(it, 'out_of_order', 409, `Sequence number ${it.change.seq} is not after ${device.lastSeq}, the last this device had accepted.`);
+        } else fresh.push(it);
+      }
+      return fresh;
+    }
+
+    // Runs the caller may write to: what the database has, plus runs accepted earlier in this batch.
+    const runInfo = new Map<string, { labId: string; analystId: string }>();
+    const referenced = new Set<string>();
+    for (const it of items) {
+      const d = it.data as { runId?: string };
+      if (it.change.kind === 'run') referenced.add(it.change.id);
+      else if (d.runId) referenced.add(d.runId);
+    }
+    for (const r of await repo.runsByIds(tx, [...referenced])) runInfo.set(r.id, r);
+
+    const mayWrite = (labId: string, analystId: string): string | null => {
+      const role = caller.roleIn(labId);
+      if (!role) return 'You are not a member of the lab of this run.';
+      if (!WRITE_ROLES.includes(role)) return `A ${role} cannot record runs.`;
+      if (role === 'analyst' && analystId !== caller.userId) return "An analyst can add only to their own runs.";
+      return null;
+    };
+    /** The run of a record, checked for permission; answers the item and returns null when it cannot go in. */
+    const runFor = (it: Item, runId: string) => {
+      const run = runInfo.get(runId);
+      if (!run) {
+        answer(it, 'rejected', 404, 'The run of this record is not on the server (it was never sent, or was rejected).');
+        return null;
+      }
+      const denied = mayWrite(run.labId, run.analystId);
+      if (denied) {
+        answer(it, 'rejected', 403, denied);
+        return null;
+      }
+      return { id: runId, ...run };
+    };
+    const accepted = (it: Item, entity: string, recordId: string, labId: string, runId: string | null) => {
+      answer(it, 'accepted', 201);
+      log.push({ labId, entity, recordId, runId });
+      if (runId) touchedRuns.add(runId);
+      lastLab = labId;
+    };
+
+    // 1. Runs.
+    {
+      const fresh = await settleExisting('run', byKind('run'));
+      const rows: repo.RunInsert[] = [];
+      const pending: Item[] = [];
+      for (const it of fresh) {
+        const d = it.data as Parsed<'run'>;
+        const denied = mayWrite(d.labId, caller.userId);
+        if (denied) {
+          answer(it, 'rejected', 403, denied);
+          continue;
+        }
+        rows.push({
+          id: it.change.id,
+          labId: d.labId,
+          analystId: caller.userId,
+          sampleName: d.sampleName,
+          status: d.status,
+          setup: d.setup,
+          notes: d.notes,
+          isDemo: d.isDemo,
+          deviceCreatedAt: dateOrNull(it.change.recordedAt),
+          payloadHash: it.hash,
+        });
+        pending.push(it);
+      }
+      const inserted = await repo.insertIgnoringExisting(tx, 'run', rows);
+      for (const it of pending) {
+        const d = it.data as Parsed<'run'>;
+        if (inserted.has(it.change.id)) {
+          runInfo.set(it.change.id, { labId: d.labId, analystId: caller.userId });
+          accepted(it, 'run', it.change.id, d.labId, it.change.id);
+        } else answer(it, 'conflict', 409, 'A different record is already stored under this id; it was left unchanged.');
+      }
+    }
+
+    // 2. Readings, checkpoints, run events: immutable rows, bulk inserted.
+    async function rowsStage<K extends 'reading' | 'checkpoint' | 'run_event'>(kind: K, build: (it: Item, d: Parsed<K>, labId: string) => Record<string, unknown>) {
+      const fresh = await settleExisting(kind, byKind(kind));
+      const rows: Record<string, unknown>[] = [];
+      const pending: { it: Item; labId: string; runId: string }[] = [];
+      for (const it of fresh) {
+        const d = it.data as Parsed<K>;
+        const run = runFor(it, (d as { runId: string }).runId);
+        if (!run) continue;
+        rows.push(build(it, d, run.labId));
+        pending.push({ it, labId: run.labId, runId: run.id });
+      }
+      const inserted = await repo.insertIgnoringExisting(tx, kind, rows as never);
+      for (const p of pending) {
+        if (inserted.has(p.it.change.id)) accepted(p.it, kind, p.it.change.id, p.labId, p.runId);
+        else answer(p.it, 'conflict', 409, 'A different record is already stored under this id; it was left unchanged.');
+      }
+    }
+    const common = (it: Item, labId: string) => ({
+      id: it.change.id,
+      labId,
+      deviceRecordedAt: dateOrNull(it.change.recordedAt),
+      receivedAt,
+      payloadHash: it.hash,
+    });
+    await rowsStage('reading', (it, d, labId) => ({ ...common(it, labId), runId: d.runId, kind: 'reading', timeS: d.timeS, pH: d.pH, mV: d.mV }));
+    await rowsStage('checkpoint', (it, d, labId) => ({ ...common(it, labId), runId: d.runId, timeS: d.timeS, buretteMl: d.buretteMl }));
+    await rowsStage('run_event', (it, d, labId) => ({ ...common(it, labId), runId: d.runId, kind: d.kind, timeS: d.timeS, detail: d.detail }));
+
+    // 3. Corrections: new rows in the table of what they replace (which must be in the same run).
+    {
+      const list = byKind('correction');
+      // Stored corrections live in readings or checkpoints; look in both for replays.
+      const inReadings = await repo.storedHashes(tx, 'reading', list.map((i) => i.change.id));
+      const inCheckpoints = await repo.storedHashes(tx, 'checkpoint', list.map((i) => i.change.id));
+      const fresh: Item[] = [];
+      for (const it of list) {
+        const stored = inReadings.has(it.change.id) ? inReadings.get(it.change.id) : inCheckpoints.get(it.change.id);
+        if (inReadings.has(it.change.id) || inCheckpoints.has(it.change.id)) {
+          if (stored === it.hash) answer(it, 'duplicate', 200);
+          else answer(it, 'conflict', 409, 'A different record is already stored under this id; it was left unchanged.');
+        } else if (it.replayOnly) {
+          answer(it, 'out_of_order', 409, `Sequence number ${it.change.seq} is not after ${device.lastSeq}, the last this device had accepted.`);
+        } else fresh.push(it);
+      }
+      // In seq order, one at a time: a correction may replace a correction sent just before it.
+      for (const it of fresh) {
+        const d = it.data as Parsed<'correction'>;
+        const run = runFor(it, d.runId);
+        if (!run) continue;
+        const target = (await repo.correctionTargets(tx, d.of, [d.replacesId])).get(d.replacesId);
+        if (!target || target.runId !== d.runId) {
+          answer(it, 'rejected', 404, `The ${d.of} this corrects is not on the server in the same run.`);
+          continue;
+        }
+        const base = { ...common(it, run.labId), runId: d.runId, timeS: d.timeS ?? target.timeS, replacesId: d.replacesId, reason: d.reason };
+        const row =
+          d.of === 'reading'
+            ? { ...base, kind: d.withdraw ? 'deletion' : 'correction', pH: d.withdraw ? null : (d.pH ?? null), mV: d.withdraw ? null : (d.mV ?? null) }
+            : { ...base, buretteMl: d.withdraw ? null : (d.buretteMl ?? null) };
+        const inserted = await repo.insertIgnoringExisting(tx, d.of, [row as never]);
+        if (inserted.has(it.change.id)) accepted(it, d.of, it.change.id, run.labId, run.id);
+        else answer(it, 'conflict', 409, 'A different record is already stored under this id; it was left unchanged.');
+      }
+    }
+
+    // 4. Metadata edits and submissions, in sequence order (each may depend on the one before).
+    const sequential = items.filter((i) => i.change.kind === 'run_meta_edit' || i.change.kind === 'submission');
+    for (const it of sequential) {
+      if (it.change.kind === 'run_meta_edit') await metaEdit(tx, it);
+      else await submission(tx, it);
+    }
+
+    async function metaEdit(t: Executor, it: Item) {
+      const d = it.data as Parsed<'run_meta_edit'>;
+      const stored = await repo.metaHistoryById(t, it.change.id);
+      if (stored) {
+        if (stored.payloadHash !== it.hash) return answer(it, 'conflict', 409, 'A different edit is already stored under this id; it was left unchanged.');
+        const run = await repo.lockRun(t, d.runId);
+        return answer(it, 'duplicate', 200, undefined, {
+          field: d.field,
+          winner: stored.outcome === 'applied' ? 'device' : 'server',
+          conflict: stored.outcome === 'conflict',
+          value: String(run[META_COLUMN[d.field]]),
+          version: run.version,
+        });
+      }
+      if (it.replayOnly) return answer(it, 'out_of_order', 409, `Sequence number ${it.change.seq} is not after ${device.lastSeq}.`);
+      if (!runFor(it, d.runId)) return;
+      const run = await repo.lockRun(t, d.runId);
+      const column = META_COLUMN[d.field];
+      const current = String(run[column]);
+      // A device that never saw a server version edited the run as it created it: version 1.
+      const base = d.baseVersion ?? 1;
+      const competing = (await repo.appliedSince(t, d.runId, d.field, base)).filter((e) => e.value !== d.value);
+      const conflict = competing.length > 0 && current !== d.value;
+      let version = run.version;
+      if (!conflict && current !== d.value) version = await repo.setRunField(t, d.runId, column, d.value, receivedAt);
+      await repo.insertMetaHistory(t, {
+        id: it.change.id,
+        runId: d.runId,
+        labId: run.labId,
+        userId: caller.userId,
+        deviceId: req.deviceId,
+        field: d.field,
+        value: d.value,
+        previousValue: current,
+        baseVersion: d.baseVersion,
+        resultVersion: version,
+        outcome: conflict ? 'conflict' : 'applied',
+        deviceRecordedAt: dateOrNull(it.change.recordedAt),
+        receivedAt,
+        payloadHash: it.hash!,
+      });
+      answer(it, 'accepted', 201, undefined, {
+        field: d.field,
+        winner: conflict ? 'server' : 'device',
+        conflict,
+        value: conflict ? current : d.value,
+        version,
+      });
+      log.push({ labId: run.labId, entity: 'run_meta_edit', recordId: it.change.id, runId: d.runId });
+      log.push({ labId: run.labId, entity: 'run', recordId: d.runId, runId: d.runId });
+      touchedRuns.add(d.runId);
+      lastLab = run.labId;
+    }
+
+    async function submission(t: Executor, it: Item) {
+      const d = it.data as Parsed<'submission'>;
+      const stored = (await repo.storedHashes(t, 'submission', [it.change.id])).get(it.change.id);
+      if (stored !== undefined) {
+        return stored === it.hash ? answer(it, 'duplicate', 200) : answer(it, 'conflict', 409, 'A different submission is already stored under this id.');
+      }
+      if (it.replayOnly) return answer(it, 'out_of_order', 409, `Sequence number ${it.change.seq} is not after ${device.lastSeq}.`);
+      const run = runFor(it, d.runId);
+      if (!run) return;
+      await repo.insertSubmission(t, {
+        id: it.change.id,
+        runId: d.runId,
+        labId: run.labId,
+        userId: caller.userId,
+        note: d.note,
+        deviceRecordedAt: dateOrNull(it.change.recordedAt),
+        receivedAt,
+        payloadHash: it.hash!,
+      });
+      await repo.setRunField(t, d.runId, 'status', 'submitted', receivedAt);
+      answer(it, 'accepted', 201);
+      log.push({ labId: run.labId, entity: 'run', recordId: d.runId, runId: d.runId });
+      touchedRuns.add(d.runId);
+      lastLab = run.labId;
+    }
+
+    const maxSeq = await repo.logChanges(tx, log);
+    if (clockFlagged) await repo.flagRunClocks(tx, [...touchedRuns], req.deviceId, clockOffsetMs, receivedAt);
+    if (maxSeq !== null) await repo.notifyRuns(tx, LIVE_CHANNEL, [...touchedRuns].map((r) => `${r}:${maxSeq}`));
+    const lastSeq = Math.max(device.lastSeq, req.changes[req.changes.length - 1].seq);
+    await repo.updateDevice(tx, req.deviceId, caller.userId, {
+      lastSeq,
+      clockOffsetMs,
+      lastSyncAt: receivedAt,
+      ...(lastLab ? { labId: lastLab } : {}),
+    });
+    return { results, lastSeq, serverTime: receivedAt.toISOString(), clockOffsetMs, clockFlagged };
+  });
+}
+
+// ---------- pull ----------
+
+type Loader = (db: Executor, ids: string[]) => Promise<Map<string, unknown>>;
+const iso = (d: Date | null) => (d ? d.toISOString() : null);
+
+/** How each entity of the change log is loaded for a pull; other areas add theirs (calibration, titrant). */
+export const pullLoaders = new Map<string, Loader>([
+  [
+    'run',
+    async (db, ids) =>
+      new Map(
+        (await repo.runsWithFlags(db, ids)).map(({ run: r, clockOffsetMs }) => [
+          r.id,
+          {
+            id: r.id,
+            labId: r.labId,
+            analystId: r.analystId,
+            sampleName: r.sampleName,
+            status: r.status,
+            setup: r.setup,
+            notes: r.notes,
+            version: r.version,
+            isDemo: r.isDemo,
+            createdAt: r.createdAt.toISOString(),
+            updatedAt: r.updatedAt.toISOString(),
+            clockOffsetMs: clockOffsetMs === null ? null : Number(clockOffsetMs),
+          },
+        ]),
+      ),
+  ],
+  [
+    'reading',
+    async (db, ids) =>
+      new Map(
+        (await repo.readingsByIds(db, ids)).map((r) => [
+          r.id,
+          {
+            id: r.id,
+            runId: r.runId,
+            labId: r.labId,
+            kind: r.kind,
+            timeS: r.timeS,
+            pH: r.pH,
+            mV: r.mV,
+            replacesId: r.replacesId,
+            reason: r.reason,
+            deviceRecordedAt: iso(r.deviceRecordedAt),
+            receivedAt: r.receivedAt.toISOString(),
+          },
+        ]),
+      ),
+  ],
+  [
+    'checkpoint',
+    async (db, ids) =>
+      new Map(
+        (await repo.checkpointsByIds(db, ids)).map((c) => [
+          c.id,
+          {
+            id: c.id,
+            runId: c.runId,
+            labId: c.labId,
+            timeS: c.timeS,
+            buretteMl: c.buretteMl,
+            replacesId: c.replacesId,
+            reason: c.reason,
+            deviceRecordedAt: iso(c.deviceRecordedAt),
+            receivedAt: c.receivedAt.toISOString(),
+          },
+        ]),
+      ),
+  ],
+  [
+    'run_event',
+    async (db, ids) =>
+      new Map(
+        (await repo.runEventsByIds(db, ids)).map((e) => [
+          e.id,
+          { id: e.id, runId: e.runId, labId: e.labId, kind: e.kind, timeS: e.timeS, detail: e.detail, receivedAt: e.receivedAt.toISOString() },
+        ]),
+      ),
+  ],
+  [
+    'run_meta_edit',
+    async (db, ids) =>
+      new Map(
+        (await repo.metaEditsByIds(db, ids)).map((m) => [
+          m.id,
+          {
+            id: m.id,
+            runId: m.runId,
+            field: m.field,
+            value: m.value,
+            previousValue: m.previousValue,
+            baseVersion: m.baseVersion,
+            resultVersion: m.resultVersion,
+            outcome: m.outcome,
+            userId: m.userId,
+            receivedAt: m.receivedAt.toISOString(),
+          },
+        ]),
+      ),
+  ],
+]);
+
+/**
+ * What changed in the caller's labs after `cursor`, oldest first, each with the record's current state.
+ * A record changed several times in one page appears once, at its latest position.
+ */
+export async function pull(deps: SyncDeps, caller: SyncCaller, q: { cursor: number; limit: number; runId?: string }): Promise<PullResponse> {
+  const db = deps.database.db;
+  const labIds = caller.labs.map((l) => l.labId);
+  const rows = await repo.changesSince(db, { labIds, cursor: q.cursor, limit: q.limit + 1, runId: q.runId });
+  const more = rows.length > q.limit;
+  const page = rows.slice(0, q.limit);
+  const latest = new Map<string, (typeof page)[number]>();
+  for (const r of page) latest.set(`${r.entity}:${r.recordId}`, r);
+  const byEntity = new Map<string, string[]>();
+  for (const r of latest.values()) byEntity.set(r.entity, [...(byEntity.get(r.entity) ?? []), r.recordId]);
+  const loaded = new Map<string, Map<string, unknown>>();
+  for (const [entity, ids] of byEntity) {
+    const loader = pullLoaders.get(entity);
+    if (loader) loaded.set(entity, await loader(db, ids));
+  }
+  const changes: PulledChange[] = [];
+  for (const r of [...latest.values()].sort((a, b) => a.seq - b.seq)) {
+    const record = loaded.get(r.entity)?.get(r.recordId);
+    if (record !== undefined) changes.push({ seq: r.seq, entity: r.entity, record } as PulledChange);
+  }
+  return { changes, cursor: page.length ? page[page.length - 1].seq : q.cursor, more };
+}

@@ -1,0 +1,282 @@
+import { z } from 'zod';
+
+/**
+ * The sync protocol between a device's local outbox and the lab server (issue 6). See server/services/sync.ts for
+ * the rules the server applies; these schemas are the wire format both sides validate.
+ *
+ * Every change carries the client-generated id of its record (the idempotency key), the device's sequence number
+ * (strictly increasing per device, gaps allowed) and the device's wall-clock time of recording (stored, never used
+ * to order or resolve anything).
+ */
+
+const uuid = z.uuid();
+/** Milliseconds since the epoch on the device's clock (may be days off). */
+const deviceMs = z.number().int().nonnegative();
+const finite = z.number().finite();
+/** pH meters in this trade read about −2…16; anything beyond is a typing error. Common practice, not a standard. */
+const pH = finite.min(-2).max(16);
+/** mV of a glass electrode: ±2000 mV covers every meter range we know (common practice). */
+const mV = finite.min(-2000).max(2000);
+const runTimeS = finite.nonnegative().max(7 * 24 * 3600);
+
+/** Statuses a device may set; review outcomes (approved, returned) are the server's and a reviewer's business. */
+export const deviceRunStatusSchema = z.enum(['ready', 'recording', 'running', 'paused', 'finished', 'submitted']);
+
+export const runPayloadSchema = z.object({
+  labId: uuid,
+  sampleName: z.string().trim().min(1).max(200),
+  setup: z.record(z.string(), z.unknown()).default({}),
+  notes: z.string().max(20_000).default(''),
+  status: deviceRunStatusSchema.default('ready'),
+  isDemo: z.boolean().default(false),
+});
+
+export const readingPayloadSchema = z
+  .object({
+    runId: uuid,
+    timeS: runTimeS,
+    pH: pH.nullable().default(null),
+    mV: mV.nullable().default(null),
+  })
+  .refine((r) => r.pH !== null || r.mV !== null, { message: 'A reading needs a pH or an mV value.' });
+
+export const checkpointPayloadSchema = z.object({
+  runId: uuid,
+  timeS: runTimeS,
+  buretteMl: finite.min(0).max(1000),
+});
+
+/** A new record that corrects (values given) or withdraws (`withdraw: true`) a reading or checkpoint. */
+export const correctionPayloadSchema = z
+  .object({
+    of: z.enum(['reading', 'checkpoint']),
+    runId: uuid,
+    replacesId: uuid,
+    reason: z.string().trim().min(1, 'A correction needs a reason.').max(2000),
+    withdraw: z.boolean().default(false),
+    timeS: runTimeS.optional(),
+    pH: pH.nullable().optional(),
+    mV: mV.nullable().optional(),
+    buretteMl: finite.min(0).max(1000).nullable().optional(),
+  })
+  .refine(
+    (c) =>
+      c.withdraw ||
+      (c.of === 'reading' ? c.pH != null || c.mV != null : c.buretteMl != null),
+    { message: 'A correction gives the new value, or withdraws the record.' },
+  );
+
+export const runEventPayloadSchema = z.object({
+  runId: uuid,
+  kind: z.string().trim().min(1).max(40),
+  timeS: runTimeS,
+  detail: z.record(z.string(), z.unknown()).nullable().default(null),
+});
+
+export const metaFieldSchema = z.enum(['notes', 'sampleName', 'status']);
+export type MetaField = z.infer<typeof metaFieldSchema>;
+
+/** An edit of a run's editable metadata, made on top of the server version the device last saw. */
+export const runMetaEditPayloadSchema = z
+  .object({
+    runId: uuid,
+    field: metaFieldSchema,
+    value: z.string().max(20_000),
+    /** The run version the device had when the edit was made; null if the run never reached the server before. */
+    baseVersion: z.number().int().positive().nullable(),
+  })
+  .superRefine((e, ctx) => {
+    if (e.field === 'status' && !deviceRunStatusSchema.safeParse(e.value).success) {
+      ctx.addIssue({ code: 'custom', path: ['value'], message: `A device cannot set the status "${e.value}".` });
+    }
+    if (e.field === 'sampleName' && !e.value.trim()) {
+      ctx.addIssue({ code: 'custom', path: ['value'], message: 'The sample name cannot be empty.' });
+    }
+  });
+
+export const submissionPayloadSchema = z.object({
+  runId: uuid,
+  note: z.string().max(2000).default(''),
+});
+
+export const entityKindSchema = z.enum(['run', 'reading', 'checkpoint', 'correction', 'run_event', 'run_meta_edit', 'submission']);
+export type EntityKind = z.infer<typeof entityKindSchema>;
+
+export const payloadSchemas = {
+  run: runPayloadSchema,
+  reading: readingPayloadSchema,
+  checkpoint: checkpointPayloadSchema,
+  correction: correctionPayloadSchema,
+  run_event: runEventPayloadSchema,
+  run_meta_edit: runMetaEditPayloadSchema,
+  submission: submissionPayloadSchema,
+} as const;
+
+/**
+ * One change as sent. The payload is validated per kind on the server, record by record, so one bad change is
+ * answered "rejected" and the rest of the batch still goes in.
+ */
+export const changeSchema = z.object({
+  id: uuid,
+  kind: entityKindSchema,
+  seq: z.number().int().positive(),
+  recordedAt: deviceMs,
+  payload: z.unknown(),
+});
+export type Change = z.infer<typeof changeSchema>;
+
+export const MAX_BATCH = 1000;
+
+export const pushRequestSchema = z
+  .object({
+    deviceId: uuid,
+    /** Device wall clock when the request was sent: the server estimates the device's clock offset from it. */
+    sentAt: deviceMs,
+    changes: z.array(changeSchema).min(1).max(MAX_BATCH),
+  })
+  .superRefine((b, ctx) => {
+    for (let i = 1; i < b.changes.length; i++) {
+      if (b.changes[i].seq <= b.changes[i - 1].seq) {
+        ctx.addIssue({ code: 'custom', path: ['changes', i, 'seq'], message: 'Sequence numbers must increase within a batch.' });
+        return;
+      }
+    }
+  });
+export type PushRequest = z.infer<typeof pushRequestSchema>;
+
+/**
+ * What became of one change:
+ * - accepted: stored now; duplicate: already stored with the identical payload ("already have it");
+ * - conflict (409): that id is stored with a different payload, which stays untouched;
+ * - rejected (422/403/404): can never be accepted as sent (validation, permission, unknown run); the reason says why;
+ * - out_of_order (409): a new record with a sequence number at or below one the server already accepted.
+ */
+export const outcomeSchema = z.enum(['accepted', 'duplicate', 'conflict', 'rejected', 'out_of_order']);
+export type Outcome = z.infer<typeof outcomeSchema>;
+
+export const metaResolutionSchema = z.object({
+  field: metaFieldSchema,
+  /** Which value the run now holds: this device's edit, or the one that reached the server first. */
+  winner: z.enum(['device', 'server']),
+  conflict: z.boolean(),
+  value: z.string(),
+  version: z.number().int(),
+});
+export type MetaResolution = z.infer<typeof metaResolutionSchema>;
+
+export const changeResultSchema = z.object({
+  id: uuid,
+  seq: z.number().int(),
+  outcome: outcomeSchema,
+  status: z.number().int(),
+  reason: z.string().optional(),
+  meta: metaResolutionSchema.optional(),
+});
+export type ChangeResult = z.infer<typeof changeResultSchema>;
+
+export const pushResponseSchema = z.object({
+  results: z.array(changeResultSchema),
+  /** Highest sequence number of this device the server has taken (committed with the batch). */
+  lastSeq: z.number().int(),
+  serverTime: z.iso.datetime(),
+  /** Device clock minus server clock at receipt, ms (one-way latency included); flagged beyond CLOCK_FLAG_MS. */
+  clockOffsetMs: z.number(),
+  clockFlagged: z.boolean(),
+});
+export type PushResponse = z.infer<typeof pushResponseSchema>;
+
+/** Offsets beyond this are flagged on the run (common practice: well above network latency, well below a shift). */
+export const CLOCK_FLAG_MS = 5 * 60_000;
+
+export const pullQuerySchema = z.object({
+  cursor: z.coerce.number().int().nonnegative().default(0),
+  limit: z.coerce.number().int().min(1).max(5000).default(1000),
+});
+export type PullQuery = z.infer<typeof pullQuerySchema>;
+
+const iso = z.iso.datetime({ offset: true });
+
+export const pulledRunSchema = z.object({
+  id: uuid,
+  labId: uuid,
+  analystId: uuid,
+  sampleName: z.string(),
+  status: z.string(),
+  setup: z.unknown(),
+  notes: z.string(),
+  version: z.number().int(),
+  isDemo: z.boolean(),
+  createdAt: iso,
+  updatedAt: iso,
+  /** Largest device clock offset seen while this run synced, when it was beyond CLOCK_FLAG_MS. */
+  clockOffsetMs: z.number().nullable(),
+});
+export const pulledReadingSchema = z.object({
+  id: uuid,
+  runId: uuid,
+  labId: uuid,
+  kind: z.string(),
+  timeS: z.number(),
+  pH: z.number().nullable(),
+  mV: z.number().nullable(),
+  replacesId: uuid.nullable(),
+  reason: z.string().nullable(),
+  deviceRecordedAt: iso.nullable(),
+  receivedAt: iso,
+});
+export const pulledCheckpointSchema = z.object({
+  id: uuid,
+  runId: uuid,
+  labId: uuid,
+  timeS: z.number(),
+  buretteMl: z.number().nullable(),
+  replacesId: uuid.nullable(),
+  reason: z.string().nullable(),
+  deviceRecordedAt: iso.nullable(),
+  receivedAt: iso,
+});
+export const pulledRunEventSchema = z.object({
+  id: uuid,
+  runId: uuid,
+  labId: uuid,
+  kind: z.string(),
+  timeS: z.number(),
+  detail: z.unknown(),
+  receivedAt: iso,
+});
+export const pulledMetaEditSchema = z.object({
+  id: uuid,
+  runId: uuid,
+  field: metaFieldSchema,
+  value: z.string(),
+  previousValue: z.string().nullable(),
+  baseVersion: z.number().int().nullable(),
+  resultVersion: z.number().int(),
+  outcome: z.enum(['applied', 'conflict']),
+  userId: uuid,
+  receivedAt: iso,
+});
+
+const knownChangeSchema = z.discriminatedUnion('entity', [
+  z.object({ seq: z.number().int(), entity: z.literal('run'), record: pulledRunSchema }),
+  z.object({ seq: z.number().int(), entity: z.literal('reading'), record: pulledReadingSchema }),
+  z.object({ seq: z.number().int(), entity: z.literal('checkpoint'), record: pulledCheckpointSchema }),
+  z.object({ seq: z.number().int(), entity: z.literal('run_event'), record: pulledRunEventSchema }),
+  z.object({ seq: z.number().int(), entity: z.literal('run_meta_edit'), record: pulledMetaEditSchema }),
+]);
+// Calibrations and titrants join as their areas register loaders (server/services/sync.ts); clients skip kinds they do not know.
+export const pulledChangeSchema = z.union([knownChangeSchema, z.object({ seq: z.number().int(), entity: z.string(), record: z.unknown() })]);
+export type PulledChange = z.infer<typeof pulledChangeSchema>;
+
+export const pullResponseSchema = z.object({
+  changes: z.array(pulledChangeSchema),
+  /** Pass back as `cursor` next time; it only grows. */
+  cursor: z.number().int(),
+  more: z.boolean(),
+});
+export type PullResponse = z.infer<typeof pullResponseSchema>;
+
+/** Live follow of one run: readings, checkpoints and events after `after` (a pull cursor). */
+export const liveQuerySchema = z.object({
+  after: z.coerce.number().int().nonnegative().default(0),
+});
