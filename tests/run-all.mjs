@@ -61,8 +61,8 @@ function ensureChromium() {
 step('typecheck (tsc)', run('npx', ['tsc', '--noEmit', '-p', 'tsconfig.json']));
 step('lint (eslint)', run('npx', ['eslint', '.']));
 vitestStep('unit', []);
-if (!skip.has('reliability') && existsSync('tests/reliability/run.mjs')) {
-  step('reliability (short)', run(process.execPath, ['tests/reliability/run.mjs', '--short']));
+if (!skip.has('reliability')) {
+  vitestStep('reliability', ['-c', 'tests/reliability/vitest.config.mts'], { RELIABILITY: 'short' });
 }
 if (!skip.has('browser')) {
   if (ensureChromium()) vitestStep('browser', ['-c', 'tests/browser/vitest.config.mts']);
