@@ -3,3 +3,4 @@ export * from './core';
 export * from './auth';
 export * from './sync';
 export * from './calibrations';
+export * from './desk';
