@@ -6,7 +6,7 @@ import { findBreaks, lineFit, type Break } from './breaks';
 import { productBudget } from './budget';
 import { timeToVolume } from './delivery';
 import { parseOrThrow } from './errors';
-import { fitCurve, type FitOutput } from './fit';
+import { effectiveWeights, fitCurve, type FitOutput } from './fit';
 import { ChargeBalanceModel } from './model';
 import { localPolyValue, savitzkyGolay } from './savgol';
 
@@ -116,12 +116,9 @@ export function analyzeRun(input: RunDocument, options: AnalyzeOptions = {}): An
   const uPH = options.pHUncertainty ?? 0.01;
   const uTap = options.tapTimingUncertaintyS ?? 0.2;
   // effective variance: a timing error moves pH by (dpH/dV)·(dV/dt)·δt, so steep points weigh less
-  const w = new Float64Array(N);
-  for (let i = 0; i < N; i++) {
-    const d = Number.isFinite(sg.d1[i]) ? sg.d1[i] : 0;
-    const uv = map.rateAt(times[i]) * uTap;
-    w[i] = (uPH * uPH) / (uPH * uPH + d * d * uv * uv);
-  }
+  const rates = new Float64Array(N);
+  for (let i = 0; i < N; i++) rates[i] = map.rateAt(times[i]);
+  const w = effectiveWeights(sg.d1, rates, uPH, uTap);
   const model = new ChargeBalanceModel({ sampleVolumeMl: V0, titrantM: Cb, carbonateM: doc.titrant.carbonateM, temperatureC: T, activity });
   const pHAtV = (v: number) => localPolyValue(V, pH, v, 2, 2);
   const startFor = (ve1: number) => {

@@ -28,6 +28,19 @@ export interface FitOutput {
 
 const MAX_P = 6;
 
+/** Effective-variance weights (relative to a pH reading's variance): a tap-timing error δt moves the reading by
+ * (dpH/dV)·(dV/dt)·δt, so readings on the steep part of a break weigh less. */
+export function effectiveWeights(dpHdV: ArrayLike<number>, rateMlPerS: ArrayLike<number>, uPH: number, uTapS: number): Float64Array {
+  const n = dpHdV.length;
+  const w = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const d = Number.isFinite(dpHdV[i]) ? dpHdV[i] : 0;
+    const uv = rateMlPerS[i] * uTapS;
+    w[i] = (uPH * uPH) / (uPH * uPH + d * d * uv * uv);
+  }
+  return w;
+}
+
 /** Cholesky solve of (A) x = b for a small symmetric positive-definite A (row-major, size p); false if not SPD. */
 function choleskySolve(A: Float64Array, b: Float64Array, x: Float64Array, p: number, L: Float64Array): boolean {
   for (let i = 0; i < p; i++) {

@@ -289,7 +289,8 @@ export class ChargeBalanceModel {
       const delta = h - this.Kwc / h;
       const cn = this.ccAlpha1 + 2 * this.ccAlpha2;
       const Vn = (this.V0 * (Ca * this.nbar - delta)) / (this.Cb - this.Cc * cn + delta);
-      if (this.activity === 'none' || !(Vn >= 0) || !Number.isFinite(Vn)) return Vn;
+      // with Davies an early pass may land slightly below zero (I starts at 0): keep iterating while V0 + V > 0
+      if (this.activity === 'none' || !Number.isFinite(Vn) || Vn <= -this.V0) return Vn;
       const Vtn = this.V0 + Vn;
       const In = this.currentI((this.Cb * Vn) / Vtn, amountMmol / Vtn, (this.Cc * Vn) / Vtn);
       const done = Math.abs(Vn - V) <= 1e-12 * (1 + Vn) && Math.abs(In - I) <= 1e-13 * In + 1e-18;
