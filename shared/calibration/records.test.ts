@@ -58,3 +58,16 @@ describe('combineStandardisations (GUM, JCGM 100:2008)', () => {
 
   it('no replicates: no concentration', () => expect(combineStandardisations([])).toBeNull());
 });
+
+describe('recordStatuses tie-break', () => {
+  it('two records performed in the same second: the later stored is in force', () => {
+    const r = recordStatuses(
+      [
+        { id: 'z', performedAt: at(-1), createdAt: at(-1), expiresAt: at(5), accepted: true, withdrawnAt: null },
+        { id: 'a', performedAt: at(-1), createdAt: at(-0.9), expiresAt: at(5), accepted: true, withdrawnAt: null },
+      ],
+      now,
+    );
+    expect(r.inForceId).toBe('a');
+  });
+});

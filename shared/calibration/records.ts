@@ -9,6 +9,8 @@ export interface StatusInput {
   expiresAt: string | Date;
   accepted: boolean;
   withdrawnAt: string | Date | null;
+  /** Breaks ties of performedAt (two records made in the same second): the later-stored one wins. */
+  createdAt?: string | Date;
   /** Records that cannot be used as a rate (a drop count without a gravimetric rate) never come into force. */
   usable?: boolean;
 }
@@ -18,7 +20,7 @@ const ms = (d: string | Date) => (typeof d === 'string' ? Date.parse(d) : d.getT
 /**
  * Status of each record of one subject (a drip setting, an electrode, a lot): the latest accepted, unexpired,
  * not withdrawn one is in force; older accepted ones that are still valid are superseded (kept for history and for
- * runs that used them). Ties on performedAt go to the later id (UUIDs sort by creation in our ids).
+ * runs that used them). Ties on performedAt go to the later createdAt, then the larger id (only to be deterministic).
  */
 export function recordStatuses(records: readonly StatusInput[], now: Date): { statuses: Map<string, RecordStatus>; inForceId: string | null } {
   const t = now.getTime();
@@ -30,7 +32,8 @@ export function recordStatuses(records: readonly StatusInput[], now: Date): { st
     else if (ms(r.expiresAt) <= t) statuses.set(r.id, 'expired');
     else candidates.push(r);
   }
-  candidates.sort((a, b) => ms(b.performedAt) - ms(a.performedAt) || (a.id < b.id ? 1 : -1));
+  const created = (r: StatusInput) => (r.createdAt ? ms(r.createdAt) : 0);
+  candidates.sort((a, b) => ms(b.performedAt) - ms(a.performedAt) || created(b) - created(a) || (a.id < b.id ? 1 : -1));
   const inForce = candidates[0];
   for (const c of candidates) statuses.set(c.id, c === inForce ? 'in-force' : 'superseded');
   return { statuses, inForceId: inForce?.id ?? null };

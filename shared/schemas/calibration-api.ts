@@ -227,7 +227,10 @@ export const dripSettingSchema = z.object({
   retired: z.boolean(),
   isDemo: z.boolean(),
   calibrations: z.array(dripCalibrationSchema),
+  /** The rate in force (gravimetric or mark timing). */
   inForceId: z.string().nullable(),
+  /** The latest valid drop count (drops/min, drop volume); it gives no rate of its own. */
+  inForceDropCountId: z.string().nullable(),
 });
 export type DripSetting = z.infer<typeof dripSettingSchema>;
 
