@@ -4,6 +4,7 @@ import type { Router } from 'express';
 import { runs } from '../../db/schema';
 import { apiRouter, apiRoutes } from '../api';
 import { calibrationMatrix } from '../api/calibrations.matrix';
+import { deskMatrix } from '../api/desk.matrix';
 import { calibrationMatrix } from '../api/calibrations.matrix';
 import { authFixture, TEST_PASSWORD, type AuthFixture } from '../auth/test-fixture';
 import { closeTemplate } from '../testing/db';
@@ -123,6 +124,7 @@ const matrix: Record<string, Expectation> = {
     other: MEMBER_ONLY_OTHER,
   },
   ...calibrationMatrix,
+  ...deskMatrix,
   ...calibrationMatrix,
   // Sync: push is open to any signed-in user; each change is checked against the caller's lab role inside the batch
   // (a viewer's run comes back 200 with that change "rejected", see server/services/sync.test.ts).

@@ -2,7 +2,7 @@ import { mkdir, readFile, rename, rm, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import type { ObjectStore } from './index';
 
-const KEY = /^[a-z0-9][a-z0-9/_-]{0,200}$/;
+const KEY = /^[a-z0-9][a-z0-9/._-]{0,200}$/;
 
 /** Files under one folder; keys become relative paths, so only server-made keys (checked here) are accepted. */
 export class LocalDiskStore implements ObjectStore {
@@ -14,7 +14,7 @@ export class LocalDiskStore implements ObjectStore {
     return path.join(this.root, key);
   }
 
-  async put(key: string, body: Buffer): Promise<void> {
+  async put(key: string, body: Buffer, _contentType?: string): Promise<void> {
     const file = this.file(key);
     await mkdir(path.dirname(file), { recursive: true });
     // Write then rename, so a crash never leaves half a file under the final name.
