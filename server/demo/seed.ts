@@ -3,6 +3,7 @@ import type { Database } from '../../db/client';
 import { labs, memberships, users } from '../../db/schema';
 import type { Role } from '../../shared/schemas/roles';
 import { hashPassword } from '../auth/password';
+import { seedDemoCalibrations } from './calibrations';
 
 /**
  * The demo lab: invented people and an invented lab, marked demo wherever shown.
@@ -36,6 +37,7 @@ export async function seedDemo(database: Database): Promise<{ labId: string }> {
         .returning({ id: users.id });
       await tx.insert(memberships).values({ labId: lab.id, userId: row.id, role: u.role });
     }
+    await seedDemoCalibrations(tx, lab.id);
     return { labId: lab.id };
   });
 }
