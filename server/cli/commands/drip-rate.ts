@@ -1,9 +1,10 @@
-// `cli drip-rate FILE.json`: gravimetric drip-rate calibration (shared/calibration/gravimetric.ts).
 import { checkRepeatability, gravimetricDripRate } from '../../../shared/calibration';
 import { parseInput } from '../../../shared/calibration/errors';
 import { dripRateRequestSchema } from '../../../shared/schemas/calibration';
 
-export async function run(input: unknown): Promise<unknown> {
+/** `drip-rate FILE.json`: a gravimetric delivery, an array of them, or `{deliveries, maxRelSdPct?}`
+ * → `{rateMlPerS, uRateMlPerS, volumeMl, n, sdRateMlPerS?, replicates, ..., acceptance?}`. */
+export const dripRate = (input: unknown) => {
   const req = parseInput(dripRateRequestSchema, input);
   const isBatch = !Array.isArray(req) && 'deliveries' in req;
   const result = gravimetricDripRate(isBatch ? req.deliveries : req);
@@ -11,4 +12,4 @@ export async function run(input: unknown): Promise<unknown> {
     return { ...result, acceptance: checkRepeatability(result, { maxRelSdPct: req.maxRelSdPct }) };
   }
   return result;
-}
+};

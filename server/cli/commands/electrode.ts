@@ -1,8 +1,7 @@
-// `cli electrode FILE.json`: {temperatureC, points: [{pH | buffer, mV}], limits?} → slope %, offset at pH 7, acceptance.
 import { calibrateElectrode } from '../../../shared/calibration';
 import { parseInput } from '../../../shared/calibration/errors';
 import { electrodeCalibrationInputSchema } from '../../../shared/schemas/calibration';
 
-export async function run(input: unknown): Promise<unknown> {
-  return calibrateElectrode(parseInput(electrodeCalibrationInputSchema, input));
-}
+/** `electrode FILE.json`: `{temperatureC, points: [{pH | buffer, mV}], limits?}` → slope (% of Nernst), offset
+ * (mV at pH 7), r², residuals and acceptance. */
+export const electrode = (input: unknown) => calibrateElectrode(parseInput(electrodeCalibrationInputSchema, input));
