@@ -47,7 +47,7 @@ export async function authFixture() {
   const [labB] = await database.db.insert(labs).values({ name: 'Lab B (test)' }).returning();
   let n = 0;
 
-  async function person(labId: string | null, role: Role, label = role): Promise<Person> {
+  async function person(labId: string | null, role: Role, label: string = role): Promise<Person> {
     n++;
     const [u] = await database.db
       .insert(users)

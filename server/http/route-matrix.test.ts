@@ -1,11 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { randomUUID } from 'node:crypto';
-import type { Router } from 'express';
 import { runs } from '../../db/schema';
 import { apiRouter, apiRoutes } from '../api';
 import { calibrationMatrix } from '../api/calibrations.matrix';
 import { deskMatrix } from '../api/desk.matrix';
-import { calibrationMatrix } from '../api/calibrations.matrix';
 import { authFixture, TEST_PASSWORD, type AuthFixture } from '../auth/test-fixture';
 import { closeTemplate } from '../testing/db';
 import { describeRoute, type RouteDef } from './routes';
@@ -125,7 +123,6 @@ const matrix: Record<string, Expectation> = {
   },
   ...calibrationMatrix,
   ...deskMatrix,
-  ...calibrationMatrix,
   // Sync: push is open to any signed-in user; each change is checked against the caller's lab role inside the batch
   // (a viewer's run comes back 200 with that change "rejected", see server/services/sync.test.ts).
   'POST /sync/push': {
@@ -182,9 +179,8 @@ describe('route matrix (generated from apiRoutes)', () => {
   });
 
   it('the API router mounts only declared routes (nothing bypasses the route table)', () => {
-    const router = apiRouter({ database: fx.database, log: () => {} }) as Router & {
-      stack: { route?: { path: string; methods: Record<string, boolean> }; name?: string }[];
-    };
+    type Layer = { route?: { path: string; methods: Record<string, boolean> }; name?: string };
+    const router = apiRouter({ database: fx.database, log: () => {} }) as unknown as { stack: Layer[] };
     const declared = new Set(apiRoutes.map(describeRoute));
     const mounted = router.stack.map((layer) => {
       expect(layer.route, `router layer "${layer.name}" is not a declared route`).toBeDefined();
