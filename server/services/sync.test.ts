@@ -14,7 +14,7 @@ let w: Awaited<ReturnType<typeof syncWorld>>;
 beforeAll(async () => {
   database = await testDatabase();
   w = await syncWorld(database);
-});
+}, 300_000);
 afterAll(async () => {
   await database.close();
   await closeTemplate();

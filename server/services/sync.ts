@@ -123,19 +123,29 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
     };
     const byKind = (k: EntityKind) => items.filter((i) => i.change.kind === k);
 
-    /** Replays: "already have it" when the hash matches, 409 otherwise; a new id under an old seq is out of order. */
-    async function settleExisting(table: repo.RowTable | 'run_meta_edit' | 'submission', list: Item[]) {
+    /**
+     * Changes under a sequence number the device already passed may only be replays: answered from what is stored
+     * ("already have it" when the hash matches, 409 otherwise), a new id there is out of order. The rest are returned
+     * to be inserted; ids the insert finds taken go through `settleTaken`.
+     */
+    async function settleReplays(table: repo.RowTable, list: Item[]) {
+      const replays = list.filter((i) => i.replayOnly);
+      if (replays.length) await settleTaken(table, replays, true);
+      return list.filter((i) => !i.replayOnly);
+    }
+    async function settleTaken(table: repo.RowTable, list: Item[], replay = false) {
       const stored = await repo.storedHashes(tx, table, list.map((i) => i.change.id));
-      const fresh: Item[] = [];
       for (const it of list) {
         if (stored.has(it.change.id)) {
           if (stored.get(it.change.id) === it.hash) answer(it, 'duplicate', 200);
           else answer(it, 'conflict', 409, 'A different record is already stored under this id; it was left unchanged.');
-        } else if (it.replayOnly) {
+        } else if (replay) {
           answer(it, 'out_of_order', 409, `Sequence number ${it.change.seq} is not after ${device.lastSeq}, the last this device had accepted.`);
-        } else fresh.push(it);
+        } else {
+          // Taken by a row of another kind: (almost) impossible with UUIDs, but never silently dropped.
+          answer(it, 'conflict', 409, 'This id is already used by another record.');
+        }
       }
-      return fresh;
     }
 
     // Runs the caller may write to: what the database has, plus runs accepted earlier in this batch.
@@ -178,7 +188,7 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
 
     // 1. Runs.
     {
-      const fresh = await settleExisting('run', byKind('run'));
+      const fresh = await settleReplays('run', byKind('run'));
       const rows: repo.RunInsert[] = [];
       const pending: Item[] = [];
       for (const it of fresh) {
@@ -203,18 +213,20 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
         pending.push(it);
       }
       const inserted = await repo.insertIgnoringExisting(tx, 'run', rows);
+      const taken: Item[] = [];
       for (const it of pending) {
         const d = it.data as Parsed<'run'>;
         if (inserted.has(it.change.id)) {
           runInfo.set(it.change.id, { labId: d.labId, analystId: caller.userId });
           accepted(it, 'run', it.change.id, d.labId, it.change.id);
-        } else answer(it, 'conflict', 409, 'A different record is already stored under this id; it was left unchanged.');
+        } else taken.push(it);
       }
+      if (taken.length) await settleTaken('run', taken);
     }
 
     // 2. Readings, checkpoints, run events: immutable rows, bulk inserted.
     async function rowsStage<K extends 'reading' | 'checkpoint' | 'run_event'>(kind: K, build: (it: Item, d: Parsed<K>, labId: string) => Record<string, unknown>) {
-      const fresh = await settleExisting(kind, byKind(kind));
+      const fresh = await settleReplays(kind, byKind(kind));
       const rows: Record<string, unknown>[] = [];
       const pending: { it: Item; labId: string; runId: string }[] = [];
       for (const it of fresh) {
@@ -225,10 +237,12 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
         pending.push({ it, labId: run.labId, runId: run.id });
       }
       const inserted = await repo.insertIgnoringExisting(tx, kind, rows as never);
+      const taken: Item[] = [];
       for (const p of pending) {
         if (inserted.has(p.it.change.id)) accepted(p.it, kind, p.it.change.id, p.labId, p.runId);
-        else answer(p.it, 'conflict', 409, 'A different record is already stored under this id; it was left unchanged.');
+        else taken.push(p.it);
       }
+      if (taken.length) await settleTaken(kind, taken);
     }
     const common = (it: Item, labId: string) => ({
       id: it.change.id,
@@ -306,7 +320,8 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       const current = String(run[column]);
       // A device that never saw a server version edited the run as it created it: version 1.
       const base = d.baseVersion ?? 1;
-      const competing = (await repo.appliedSince(t, d.runId, d.field, base)).filter((e) => e.value !== d.value);
+      // Edits from this same device are earlier steps of the same hand (device order is causal), never rivals.
+      const competing = (await repo.appliedSince(t, d.runId, d.field, base)).filter((e) => e.value !== d.value && e.deviceId !== req.deviceId);
       const conflict = competing.length > 0 && current !== d.value;
       let version = run.version;
       if (!conflict && current !== d.value) version = await repo.setRunField(t, d.runId, column, d.value, receivedAt);

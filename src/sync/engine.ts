@@ -1,0 +1,273 @@
+// The device side of sync: pushes the local outbox in bounded batches, settles each row from the server's answer,
+// then pulls the lab's changes. One sync at a time (single-flight); started on app start, on the browser's online
+// event, periodically while anything waits, and again after a failure with exponential backoff.
+// Nothing here deletes local data: a row leaves the queue only as "acked" (the server has it) or "rejected" (the
+// server said it never can take it, with the reason, shown to the user).
+import { MAX_BATCH, type Change, type ChangeResult, type MetaResolution, type PullResponse, type PulledChange, type PushRequest, type PushResponse } from '../../shared/schemas/sync';
+import type { OutboxRow } from '../local/types';
+import { SLOTS, toChanges } from './changes';
+
+export interface Settlement {
+  /** Outbox seq of the row. */
+  seq: number;
+  state: 'acked' | 'rejected';
+  reason?: string;
+  /** What became of metadata edits in this row (server version, and the winning value on a conflict). */
+  meta?: (MetaResolution & { runId: string })[];
+}
+
+/** What the engine needs from the local database; src/sync/localStore.ts implements it over src/local. */
+export interface SyncStore {
+  readonly deviceId: string;
+  /** Rows still to push (pending or sent), oldest first. */
+  pendingOutbox(limit: number): Promise<OutboxRow[]>;
+  runLab(runId: string): Promise<string | null>;
+  /** Applies all settlements in one transaction. */
+  settle(list: Settlement[]): Promise<void>;
+  counts(): Promise<{ waiting: number; rejected: number }>;
+  pullCursor(): Promise<number>;
+  /** Stores pulled records and the new cursor in one transaction. */
+  applyPulled(changes: PulledChange[], cursor: number): Promise<void>;
+}
+
+export class TransportError extends Error {
+  constructor(
+    readonly kind: 'offline' | 'auth' | 'server' | 'client',
+    message: string,
+    readonly status?: number,
+  ) {
+    super(message);
+  }
+}
+
+export interface SyncTransport {
+  push(req: PushRequest): Promise<PushResponse>;
+  pull(cursor: number, limit: number): Promise<PullResponse>;
+}
+
+export type SyncState = 'offline' | 'syncing' | 'waiting' | 'synced' | 'error' | 'signed-out';
+
+export interface SyncStatus {
+  state: SyncState;
+  waiting: number;
+  rejected: number;
+  lastSyncedAt: number | null;
+  message: string | null;
+  /** Offset the server measured for this device's clock at the last push, ms. */
+  clockOffsetMs: number | null;
+  clockFlagged: boolean;
+}
+
+export interface EngineOptions {
+  /** Outbox rows read per push. */
+  batchSize?: number;
+  /** Changes per push at most (the server takes up to MAX_BATCH). */
+  maxChanges?: number;
+  /** Pull after pushing (off only in measurements of the push alone). */
+  pull?: boolean;
+  pullLimit?: number;
+  isOnline?: () => boolean;
+  /** Subscribes to "the connection came back"; returns an unsubscribe. */
+  onOnline?: (cb: () => void) => () => void;
+  periodicMs?: number;
+  baseBackoffMs?: number;
+  maxBackoffMs?: number;
+  now?: () => number;
+  random?: () => number;
+  setTimer?: (fn: () => void, ms: number) => unknown;
+  clearTimer?: (t: unknown) => void;
+  log?: (msg: string, err?: unknown) => void;
+}
+
+const FAILED: ChangeResult['outcome'][] = ['rejected', 'conflict', 'out_of_order'];
+
+export class SyncEngine {
+  private current: Promise<void> | null = null;
+  private again = false;
+  private failures = 0;
+  private timer: unknown = null;
+  private unOnline: (() => void) | null = null;
+  private listeners = new Set<(s: SyncStatus) => void>();
+  private readonly o: Required<Omit<EngineOptions, 'onOnline' | 'log'>> & Pick<EngineOptions, 'onOnline' | 'log'>;
+  status: SyncStatus = { state: 'waiting', waiting: 0, rejected: 0, lastSyncedAt: null, message: null, clockOffsetMs: null, clockFlagged: false };
+
+  constructor(
+    private readonly store: SyncStore,
+    private readonly transport: SyncTransport,
+    opts: EngineOptions = {},
+  ) {
+    this.o = {
+      batchSize: 1000,
+      maxChanges: MAX_BATCH,
+      pull: true,
+      pullLimit: 1000,
+      isOnline: () => true,
+      periodicMs: 30_000,
+      baseBackoffMs: 2_000,
+      maxBackoffMs: 60_000,
+      now: Date.now,
+      random: Math.random,
+      setTimer: (fn, ms) => setTimeout(fn, ms),
+      clearTimer: (t) => clearTimeout(t as ReturnType<typeof setTimeout>),
+      ...opts,
+    };
+  }
+
+  subscribe(fn: (s: SyncStatus) => void): () => void {
+    this.listeners.add(fn);
+    fn(this.status);
+    return () => this.listeners.delete(fn);
+  }
+
+  private set(patch: Partial<SyncStatus>) {
+    this.status = { ...this.status, ...patch };
+    for (const l of this.listeners) l(this.status);
+  }
+
+  /** Starts the triggers (app start, online event, periodic) and syncs once. */
+  start(): void {
+    this.unOnline = this.o.onOnline?.(() => {
+      this.failures = 0;
+      void this.sync();
+    }) ?? null;
+    void this.sync();
+  }
+
+  stop(): void {
+    this.unOnline?.();
+    this.unOnline = null;
+    if (this.timer !== null) this.o.clearTimer(this.timer);
+    this.timer = null;
+  }
+
+  /** Runs one sync; a call during a sync returns that sync's promise and makes it run once more at its end. */
+  sync(): Promise<void> {
+    if (this.current) {
+      this.again = true;
+      return this.current;
+    }
+    this.current = (async () => {
+      try {
+        do {
+          this.again = false;
+          await this.runOnce();
+        } while (this.again);
+      } finally {
+        this.current = null;
+      }
+    })();
+    return this.current;
+  }
+
+  private schedule(ms: number) {
+    if (this.timer !== null) this.o.clearTimer(this.timer);
+    this.timer = this.o.setTimer(() => {
+      this.timer = null;
+      void this.sync();
+    }, ms);
+  }
+
+  private backoffMs(): number {
+    const raw = Math.min(this.o.maxBackoffMs, this.o.baseBackoffMs * 2 ** Math.min(this.failures, 16));
+    return Math.round(raw * (0.5 + this.o.random() / 2));
+  }
+
+  private async refreshCounts() {
+    const c = await this.store.counts();
+    this.set({ waiting: c.waiting, rejected: c.rejected });
+    return c;
+  }
+
+  private async runOnce(): Promise<void> {
+    await this.refreshCounts();
+    if (!this.o.isOnline()) {
+      this.set({ state: 'offline', message: null });
+      return;
+    }
+    this.set({ state: 'syncing', message: null });
+    try {
+      const blocked = await this.pushAll();
+      if (this.o.pull) await this.pullAll();
+      this.failures = 0;
+      const c = await this.refreshCounts();
+      this.set({ state: c.waiting ? 'waiting' : 'synced', lastSyncedAt: this.o.now(), message: blocked });
+      if (c.waiting) this.schedule(this.o.periodicMs);
+    } catch (err) {
+      await this.refreshCounts().catch(() => undefined);
+      const e = err instanceof TransportError ? err : new TransportError('server', err instanceof Error ? err.message : String(err));
+      if (e.kind === 'auth') {
+        // Kept, not dropped: everything goes out after the next sign-in.
+        this.set({ state: 'signed-out', message: 'Sign in again to send what is waiting.' });
+        return;
+      }
+      this.failures++;
+      this.set({ state: e.kind === 'offline' ? 'offline' : 'error', message: e.message });
+      this.o.log?.('sync failed', err);
+      this.schedule(this.backoffMs());
+    }
+  }
+
+  /** Pushes batches until the queue is empty or waits on a row; returns why it waits, if it does. */
+  private async pushAll(): Promise<string | null> {
+    for (;;) {
+      const rows = await this.store.pendingOutbox(this.o.batchSize);
+      if (!rows.length) return null;
+      const local: Settlement[] = [];
+      const send: { row: OutboxRow; ids: Set<string> }[] = [];
+      const changes: Change[] = [];
+      let waitReason: string | null = null;
+      for (const row of rows) {
+        const m = await toChanges(row, { deviceId: this.store.deviceId, runLab: (id) => this.store.runLab(id) });
+        if (m.kind === 'wait') {
+          waitReason = m.reason;
+          break;
+        }
+        if (m.kind === 'local-only') local.push({ seq: row.seq, state: 'acked' });
+        else if (m.kind === 'invalid') local.push({ seq: row.seq, state: 'rejected', reason: m.reason });
+        else {
+          if (changes.length + m.changes.length > this.o.maxChanges) break;
+          changes.push(...m.changes);
+          send.push({ row, ids: new Set(m.changes.map((c) => c.id)) });
+        }
+      }
+      if (!changes.length) {
+        if (local.length) await this.store.settle(local);
+        if (waitReason || !local.length) return waitReason;
+        continue;
+      }
+      const res = await this.transport.push({ deviceId: this.store.deviceId, sentAt: Math.max(0, Math.round(this.o.now())), changes });
+      this.set({ clockOffsetMs: res.clockOffsetMs, clockFlagged: res.clockFlagged });
+      const byId = new Map(changes.map((c) => [c.id, c]));
+      const byRow = new Map<number, ChangeResult[]>();
+      for (const r of res.results) {
+        const seq = Math.floor(r.seq / SLOTS);
+        byRow.set(seq, [...(byRow.get(seq) ?? []), r]);
+      }
+      const settled: Settlement[] = [...local];
+      for (const { row } of send) {
+        const results = byRow.get(row.seq) ?? [];
+        const failed = results.filter((r) => FAILED.includes(r.outcome));
+        const meta = results
+          .filter((r) => r.meta)
+          .map((r) => ({ ...r.meta!, runId: (byId.get(r.id)?.payload as { runId: string }).runId }));
+        settled.push(
+          failed.length
+            ? { seq: row.seq, state: 'rejected', reason: failed.map((f) => f.reason ?? f.outcome).join('; '), meta }
+            : { seq: row.seq, state: 'acked', meta },
+        );
+      }
+      await this.store.settle(settled);
+      if (waitReason) return waitReason;
+    }
+  }
+
+  private async pullAll(): Promise<void> {
+    let cursor = await this.store.pullCursor();
+    for (;;) {
+      const page = await this.transport.pull(cursor, this.o.pullLimit);
+      if (page.changes.length || page.cursor !== cursor) await this.store.applyPulled(page.changes, page.cursor);
+      cursor = page.cursor;
+      if (!page.more) return;
+    }
+  }
+}
