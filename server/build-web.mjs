@@ -10,7 +10,7 @@ import path from 'node:path';
 const root = path.resolve(path.dirname(new URL(import.meta.url).pathname), '..');
 const dist = path.join(root, 'dist');
 const stampFile = path.join(dist, '.halfmark-build');
-const inputs = ['app', 'src', 'shared', 'assets', 'app.json', 'metro.config.js', 'package-lock.json', 'server/build-web.mjs'];
+const inputs = ['app', 'src', 'shared', 'assets', 'app.json', 'metro.config.js', 'package-lock.json', 'server/build-web.mjs', 'server/web-offline.mjs'];
 
 function* files(p) {
   const full = path.join(root, p);
@@ -72,5 +72,7 @@ console.log('Building the web export into dist/ (the first build takes a minute 
 const env = { ...process.env, EXPO_OFFLINE: '1', EXPO_NO_TELEMETRY: '1', EXPO_NO_DEPENDENCY_VALIDATION: '1', CI: '1' };
 const r = spawnSync('npx', ['expo', 'export', '-p', 'web', '--output-dir', 'dist'], { stdio: 'inherit', env, cwd: root });
 if (r.status !== 0) process.exit(r.status ?? 1);
+// Manifest and service worker (offline opening, install to the home screen).
+await (await import('./web-offline.mjs')).addOfflineSupport(root, dist);
 
 writeFileSync(stampFile, stamp);

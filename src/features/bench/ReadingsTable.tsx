@@ -1,0 +1,140 @@
+// Readings as a table (time, volume, pH), newest first. Only the newest rows are drawn while recording, so a run
+// of thousands of readings stays quick; the review can show them all.
+import { memo, useState } from 'react';
+import { Pressable, StyleSheet, View } from 'react-native';
+import type { CheckpointRow, ReadingRow } from '../../local/types';
+import { colors, radius, space, touch } from '../../theme/tokens';
+import { Button, Field, Text } from '../../ui';
+import { formatClock } from './clock';
+import type { Effective } from './effective';
+import { numberOrUndefined } from './setup';
+
+export interface ReadingsTableProps {
+  readings: readonly Effective<ReadingRow>[];
+  checkpoints: readonly Effective<CheckpointRow>[];
+  volumeAt(timeS: number): number | null;
+  limit?: number;
+  onCorrectReading?(eff: Effective<ReadingRow>, pH: number | null, reason: string): Promise<unknown>;
+  onCorrectCheckpoint?(eff: Effective<CheckpointRow>, ml: number | null, reason: string): Promise<unknown>;
+}
+
+type Row = { kind: 'reading'; eff: Effective<ReadingRow>; n: number } | { kind: 'checkpoint'; eff: Effective<CheckpointRow>; n: number };
+
+export const ReadingsTable = memo(function ReadingsTable({ readings, checkpoints, volumeAt, limit = 25, onCorrectReading, onCorrectCheckpoint }: ReadingsTableProps) {
+  const [showAll, setShowAll] = useState(false);
+  const [editing, setEditing] = useState<string | null>(null);
+  const rows: Row[] = [
+    ...readings.map((eff, i) => ({ kind: 'reading' as const, eff, n: i + 1 })),
+    ...checkpoints.map((eff, i) => ({ kind: 'checkpoint' as const, eff, n: i + 1 })),
+  ].sort((a, b) => b.eff.current.timeS - a.eff.current.timeS);
+  const shown = showAll ? rows : rows.slice(0, limit);
+  return (
+    <View style={styles.table} testID="readings-table" accessibilityRole="list" aria-label="Readings">
+      <View style={[styles.row, styles.headRow]}>
+        <Text variant="label" style={styles.cN}>#</Text>
+        <Text variant="label" style={styles.c}>Time</Text>
+        <Text variant="label" style={styles.c} align="right">mL</Text>
+        <Text variant="label" style={styles.c} align="right">pH</Text>
+      </View>
+      {shown.map((r) => {
+        const c = r.eff.current;
+        const v = volumeAt(c.timeS);
+        const corrected = r.eff.history.length > 1;
+        const open = editing === c.id;
+        return (
+          <View key={c.id} accessibilityRole="none">
+            <Pressable
+              accessibilityRole="button"
+              accessibilityLabel={`${r.kind === 'reading' ? `Reading ${r.n}` : `Checkpoint ${r.n}`} at ${formatClock(c.timeS)}; tap to correct`}
+              testID={r.kind === 'reading' ? `reading-row-${r.n}` : `checkpoint-row-${r.n}`}
+              onPress={() => setEditing(open ? null : c.id)}
+              style={[styles.row, r.kind === 'checkpoint' && styles.checkpointRow]}
+            >
+              <Text numeric style={styles.cN} tone="muted">
+                {r.kind === 'reading' ? r.n : `B${r.n}`}
+              </Text>
+              <Text numeric style={styles.c}>{formatClock(c.timeS)}</Text>
+              <Text numeric style={styles.c} align="right">
+                {r.kind === 'checkpoint' ? `${(c as CheckpointRow).buretteMl?.toFixed(2)} read` : v === null ? '—' : v.toFixed(2)}
+              </Text>
+              <Text numeric style={styles.c} align="right" tone={corrected ? 'accent' : 'ink'}>
+                {r.kind === 'reading' ? cellPH(c as ReadingRow) : ''}
+                {corrected ? ' *' : ''}
+              </Text>
+            </Pressable>
+            {open ? (
+              <Correction
+                kind={r.kind}
+                unit={r.kind === 'reading' ? 'pH' : 'mL'}
+                onCancel={() => setEditing(null)}
+                onSave={async (value, reason) => {
+                  const done = r.kind === 'reading' ? await onCorrectReading?.(r.eff as Effective<ReadingRow>, value, reason) : await onCorrectCheckpoint?.(r.eff as Effective<CheckpointRow>, value, reason);
+                  if (done !== undefined) setEditing(null);
+                }}
+                history={r.eff.history.map((h) => (r.kind === 'reading' ? cellPH(h as ReadingRow) : String((h as CheckpointRow).buretteMl ?? 'deleted')) + (h.reason ? ` — ${h.reason}` : ''))}
+              />
+            ) : null}
+          </View>
+        );
+      })}
+      {rows.length > shown.length ? <Button kind="quiet" label={`Show all ${rows.length} rows`} onPress={() => setShowAll(true)} testID="show-all-rows" /> : null}
+      {rows.length === 0 ? (
+        <Text tone="muted" style={styles.emptyText}>
+          No readings yet.
+        </Text>
+      ) : null}
+      <Text variant="caption" tone="muted" style={styles.emptyText}>
+        * corrected: the original is kept. Tap a row to correct or delete it (with a reason).
+      </Text>
+    </View>
+  );
+});
+
+function cellPH(r: ReadingRow): string {
+  if (r.voided) return 'deleted';
+  if (r.pH !== null) return r.pH.toFixed(2);
+  return r.mV !== null ? `${r.mV.toFixed(1)} mV` : '—';
+}
+
+function Correction({ kind, unit, onSave, onCancel, history }: { kind: 'reading' | 'checkpoint'; unit: string; onSave(value: number | null, reason: string): Promise<void>; onCancel(): void; history: string[] }) {
+  const [value, setValue] = useState('');
+  const [reason, setReason] = useState('');
+  const [err, setErr] = useState<string | null>(null);
+  const save = async (del: boolean) => {
+    if (!reason.trim()) {
+      setErr('Give a reason: the original stays in the record beside the correction.');
+      return;
+    }
+    const v = del ? null : numberOrUndefined(value);
+    if (!del && (v === undefined || Number.isNaN(v))) {
+      setErr(`Type the corrected ${unit}.`);
+      return;
+    }
+    setErr(null);
+    await onSave(v ?? null, reason);
+  };
+  return (
+    <View style={styles.correct} testID="correction">
+      {history.length > 1 ? <Text variant="caption" tone="muted">History: {history.join(' → ')}</Text> : null}
+      <Field label={`Corrected ${kind === 'reading' ? 'pH' : 'burette reading'}`} unit={unit} value={value} onChangeText={setValue} keyboardType="decimal-pad" testID="correction-value" />
+      <Field label="Reason" value={reason} onChangeText={setReason} placeholder="e.g. misread the meter" testID="correction-reason" error={err} />
+      <View style={styles.correctButtons}>
+        <Button label="Save correction" onPress={() => void save(false)} testID="correction-save" />
+        <Button label="Delete" kind="danger" onPress={() => void save(true)} testID="correction-delete" />
+        <Button label="Cancel" kind="secondary" onPress={onCancel} />
+      </View>
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  table: { borderWidth: 1, borderColor: colors.line, borderRadius: radius.md, backgroundColor: colors.surface, overflow: 'hidden' },
+  row: { flexDirection: 'row', alignItems: 'center', minHeight: touch.min, paddingHorizontal: space.md, borderBottomWidth: 1, borderBottomColor: colors.grid },
+  headRow: { backgroundColor: colors.sunken, minHeight: 40 },
+  checkpointRow: { backgroundColor: colors.paper },
+  cN: { width: 44 },
+  c: { flex: 1 },
+  correct: { padding: space.md, gap: space.sm, backgroundColor: colors.accentSoft },
+  correctButtons: { flexDirection: 'row', gap: space.sm, flexWrap: 'wrap' },
+  emptyText: { padding: space.md },
+});
