@@ -104,14 +104,14 @@ describe('push', () => {
     const run = dev.change('run', runPayload(w.labA.id));
     const r = dev.change('reading', { runId: run.id, timeS: 30, pH: 5.5 });
     const c = dev.change('checkpoint', { runId: run.id, timeS: 31, buretteMl: 12.3 });
-    const fix = dev.change('correction', { of: 'reading', runId: run.id, replacesId: r.id, reason: 'typed 5.5 for 5.05', pH: 5.05 });
+    const fix = dev.change('correction', { of: 'reading', runId: run.id, replacesId: r.id, reason: 'typed "5.5", for 5.05 {sic} \\ NULL', pH: 5.05 });
     const back = dev.change('correction', { of: 'checkpoint', runId: run.id, replacesId: c.id, reason: 'read the wrong mark', withdraw: true });
     const wrongRun = dev.change('correction', { of: 'reading', runId: v7(), replacesId: r.id, reason: 'x', pH: 1 });
     const res = await push(w.deps, analyst, dev.batch([run, r, c, fix, back, wrongRun]));
     expect(res.results.map((x) => x.outcome)).toEqual(['accepted', 'accepted', 'accepted', 'accepted', 'accepted', 'rejected']);
     const rows = await database.db.select().from(readings).where(eq(readings.runId, run.id));
     expect(rows.find((x) => x.id === r.id)?.pH).toBe(5.5);
-    expect(rows.find((x) => x.id === fix.id)).toMatchObject({ kind: 'correction', replacesId: r.id, pH: 5.05, timeS: 30 });
+    expect(rows.find((x) => x.id === fix.id)).toMatchObject({ kind: 'correction', replacesId: r.id, pH: 5.05, timeS: 30, reason: 'typed "5.5", for 5.05 {sic} \\ NULL' });
     const cps = await database.db.select().from(checkpoints).where(eq(checkpoints.runId, run.id));
     expect(cps.find((x) => x.id === back.id)).toMatchObject({ buretteMl: null, replacesId: c.id });
     expect(cps.find((x) => x.id === c.id)?.buretteMl).toBe(12.3);

@@ -11,6 +11,7 @@ import { labs, memberships, readings, runs, users } from '../../db/schema';
 import { createApp } from '../../server/app';
 import { createServerContext } from '../../server/auth/context';
 import * as sessionsRepo from '../../server/repos/sessions';
+import { insertReadingsIgnoringExisting } from '../../server/repos/sync';
 import { SyncEngine } from '../../src/sync/engine';
 import { httpTransport } from '../../src/sync/httpTransport';
 import { MemoryDevice } from '../../src/sync/memoryStore';
@@ -49,7 +50,7 @@ async function main() {
     return ms;
   }
 
-  async function rawRound(): Promise<number> {
+  async function rawRound(how: 'values' | 'unnest'): Promise<number> {
     const runId = v7();
     await database.db.insert(runs).values({ id: runId, labId: lab.id, analystId: user.id, sampleName: 'raw bench run (demo)' });
     const now = new Date();
@@ -67,28 +68,36 @@ async function main() {
     }));
     const t0 = performance.now();
     await database.db.transaction(async (tx) => {
+      if (how === 'unnest') await insertReadingsIgnoringExisting(tx, rows);
       // Chunked only because a statement takes at most 65,535 parameters.
-      for (let i = 0; i < rows.length; i += 3000) await tx.insert(readings).values(rows.slice(i, i + 3000));
+      else for (let i = 0; i < rows.length; i += 3000) await tx.insert(readings).values(rows.slice(i, i + 3000));
     });
     return performance.now() - t0;
   }
 
   const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
   await syncRound();
-  await rawRound();
+  await rawRound('values');
+  await rawRound('unnest');
   const syncMs: number[] = [];
   const rawMs: number[] = [];
+  const unnestMs: number[] = [];
   for (let i = 0; i < 3; i++) {
     syncMs.push(await syncRound());
-    rawMs.push(await rawRound());
-    log(`round ${i + 1}: sync ${syncMs[i].toFixed(0)} ms, raw insert ${rawMs[i].toFixed(0)} ms`);
+    rawMs.push(await rawRound('values'));
+    unnestMs.push(await rawRound('unnest'));
+    log(`round ${i + 1}: sync ${syncMs[i].toFixed(0)} ms, raw VALUES insert ${rawMs[i].toFixed(0)} ms, raw unnest insert ${unnestMs[i].toFixed(0)} ms`);
   }
   const s = median(syncMs);
   const r = median(rawMs);
+  const u = median(unnestMs);
   const ratio = s / r;
   console.log(JSON.stringify({ figure: `sync: ${N} readings pushed over loopback HTTP to fully acknowledged (median of 3)`, value: Math.round(s), unit: 'ms', goal: '<= 3000', meetsGoal: s <= 3000 }));
-  console.log(JSON.stringify({ figure: `sync: raw multi-row insert of the same ${N} rows (median of 3)`, value: Math.round(r), unit: 'ms', goal: 'reference', meetsGoal: true }));
-  console.log(JSON.stringify({ figure: 'sync: push time / raw insert time', value: Math.round(ratio * 100) / 100, unit: 'x', ratio, goal: '<= 2', meetsGoal: ratio <= 2 }));
+  console.log(JSON.stringify({ figure: `sync: raw multi-row VALUES insert of the same ${N} rows (median of 3)`, value: Math.round(r), unit: 'ms', goal: 'reference', meetsGoal: true }));
+  console.log(JSON.stringify({ figure: 'sync: push time / raw VALUES insert time', value: Math.round(ratio * 100) / 100, unit: 'x', ratio, goal: '<= 2', meetsGoal: ratio <= 2 }));
+  // The push inserts readings with unnest(); against the same technique the overhead of the protocol shows plainly.
+  console.log(JSON.stringify({ figure: `sync: raw unnest insert of the same ${N} rows (median of 3)`, value: Math.round(u), unit: 'ms', goal: 'reference', meetsGoal: true }));
+  console.log(JSON.stringify({ figure: 'sync: push time / raw unnest insert time', value: Math.round((s / u) * 100) / 100, unit: 'x', ratio: s / u, goal: 'reported', meetsGoal: true }));
 
   server.close();
   server.closeAllConnections?.();
