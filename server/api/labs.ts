@@ -11,7 +11,8 @@ const userParam = (id: string) => {
 };
 
 const auditQuerySchema = z.object({
-  before: z.iso.datetime({ offset: true }).optional(),
+  /** `nextBefore` of the previous page (an entry id; the page continues below its (at, id)). */
+  before: z.uuid().optional(),
   limit: z.coerce.number().int().min(1).max(200).default(50),
 });
 

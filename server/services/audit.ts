@@ -31,12 +31,10 @@ export async function audit(tx: Executor, e: AuditEntryInput): Promise<void> {
   });
 }
 
+/** `before` is the cursor of the previous page (`nextBefore`): the id of its last entry, compared as (at, id). */
 export async function auditPage(app: ServerContext, labId: string, opts: { before?: string; limit: number }): Promise<AuditPage> {
-  const rows = await auditRepo.page(app.database.db, labId, {
-    before: opts.before ? new Date(opts.before) : undefined,
-    limit: opts.limit + 1,
-  });
+  const rows = await auditRepo.page(app.database.db, labId, { afterId: opts.before, limit: opts.limit + 1 });
   const more = rows.length > opts.limit;
   const entries = rows.slice(0, opts.limit).map((r) => ({ ...r, at: r.at.toISOString() }));
-  return { entries, nextBefore: more ? entries[entries.length - 1].at : null };
+  return { entries, nextBefore: more ? entries[entries.length - 1].id : null };
 }

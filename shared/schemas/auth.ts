@@ -120,5 +120,6 @@ export const auditEntrySchema = z.object({
 });
 export type AuditEntry = z.infer<typeof auditEntrySchema>;
 
+/** `nextBefore`: the cursor for the next page (pass it as `?before=`), null on the last page. */
 export const auditPageSchema = z.object({ entries: z.array(auditEntrySchema), nextBefore: z.string().nullable() });
 export type AuditPage = z.infer<typeof auditPageSchema>;
