@@ -2,7 +2,8 @@ import { createHash } from 'node:crypto';
 import { analyzeRun, molarMass, simulateCurve } from '../../shared/engine';
 import type { RunDocument } from '../../shared/schemas/run-document';
 import type { Executor } from '../repos/executor';
-import { checkpoints, readings, runs } from '../../db/schema';
+import { like } from 'drizzle-orm';
+import { checkpoints, readings, runs, users } from '../../db/schema';
 
 /**
  * Invented demo runs (labelled demo everywhere): curves simulated with the engine's charge-balance model plus seeded
@@ -139,12 +140,16 @@ export async function insertDemoRun(tx: Executor, r: DemoRun): Promise<void> {
   await tx.insert(checkpoints).values(r.checkpoints);
 }
 
-/** The demo lab's runs: a handful by the demo analyst and manager, some submitted for review. */
-export async function seedDemoRuns(tx: Executor, labId: string, people: { analystId: string; managerId: string }, now = new Date()): Promise<number> {
+/** The demo lab's runs: a handful by the demo analyst and manager (found by their demo e-mail), some submitted. */
+export async function seedDemoRuns(tx: Executor, labId: string, now = new Date()): Promise<number> {
+  const people = await tx.select({ id: users.id, email: users.email }).from(users).where(like(users.email, '%@demo.halfmark.test'));
+  const analystId = people.find((p) => p.email.startsWith('analyst@'))?.id;
+  const managerId = people.find((p) => p.email.startsWith('manager@'))?.id ?? analystId;
+  if (!analystId || !managerId) return 0;
   const statuses = ['finished', 'submitted', 'finished', 'submitted', 'recording', 'finished'];
   for (let i = 0; i < statuses.length; i++) {
     const createdAt = new Date(now.getTime() - (statuses.length - i) * 86_400_000);
-    await insertDemoRun(tx, demoRun({ labId, analystId: i % 3 === 2 ? people.managerId : people.analystId, index: i, createdAt, status: statuses[i] }));
+    await insertDemoRun(tx, demoRun({ labId, analystId: i % 3 === 2 ? managerId : analystId, index: i, createdAt, status: statuses[i] }));
   }
   return statuses.length;
 }

@@ -4,6 +4,7 @@ import { labs, memberships, users } from '../../db/schema';
 import type { Role } from '../../shared/schemas/roles';
 import { hashPassword } from '../auth/password';
 import { seedDemoCalibrations } from './calibrations';
+import { seedDemoRuns } from './runs';
 
 /**
  * The demo lab: invented people and an invented lab, marked demo wherever shown.
@@ -38,6 +39,7 @@ export async function seedDemo(database: Database): Promise<{ labId: string }> {
       await tx.insert(memberships).values({ labId: lab.id, userId: row.id, role: u.role });
     }
     await seedDemoCalibrations(tx, lab.id);
+    await seedDemoRuns(tx, lab.id);
     return { labId: lab.id };
   });
 }

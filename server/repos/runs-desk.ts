@@ -1,6 +1,6 @@
 import { and, asc, desc, eq, ilike, inArray, or, sql, type SQL } from 'drizzle-orm';
 import { auditLog, checkpoints, labs, memberships, readings, runEvents, runs, users } from '../../db/schema';
-import { runComments, runReviewEvents, runRevisions } from '../../db/schema/desk';
+import { runComments, runReviewEvents, runRevisions, runSummaries } from '../../db/schema/desk';
 import type { RunListQuery } from '../../shared/schemas/desk';
 import type { Executor } from './executor';
 
@@ -24,7 +24,7 @@ function filters(labId: string, q: RunListQuery): SQL {
   if (q.sample) where.push(ilike(runs.sampleName, `%${escapeLike(q.sample)}%`));
   if (q.from) where.push(sql`${runs.createdAt} >= ${`${q.from}T00:00:00Z`}::timestamptz`);
   if (q.to) where.push(sql`${runs.createdAt} < (${`${q.to}T00:00:00Z`}::timestamptz + interval '1 day')`);
-  if (q.titrantLot) where.push(sql`${titrantLotExpr} = ${q.titrantLot}`);
+  if (q.titrantLot) where.push(eq(runSummaries.titrantLot, q.titrantLot));
   if (q.q) {
     const like = `%${escapeLike(q.q)}%`;
     where.push(or(ilike(runs.sampleName, like), ilike(runs.notes, like), ilike(users.displayName, like)));
@@ -37,9 +37,27 @@ const SORTS = {
   sample: sql`lower(${runs.sampleName})`,
   analyst: sql`lower(${users.displayName})`,
   status: runs.status,
-  ve,
-  pka: pKa,
+  ve: runSummaries.equivalenceVolumeMl,
+  pka: runSummaries.pKa,
 } as const;
+
+const fingerprint = sql`${runs.updatedAt}::text || ':' || coalesce(pg_column_size(${runs.result}), 0) || ':' || pg_column_size(${runs.setup})`;
+
+/**
+ * Brings the lab's run summaries up to date: only runs whose fingerprint changed are read out of their jsonb, so a
+ * list of 1,000 unchanged runs costs one join on primary keys.
+ */
+export async function refreshSummaries(db: Executor, labId: string) {
+  await db.execute(sql`
+    insert into ${runSummaries} (run_id, lab_id, equivalence_volume_ml, pka, molar_mass_g_per_mol, concentration_m, titrant_lot, fingerprint)
+    select ${runs.id}, ${runs.labId}, ${ve}, ${pKa}, ${molarMass}, ${concentration}, ${titrantLotExpr}, ${fingerprint}
+    from ${runs} left join ${runSummaries} on ${runSummaries.runId} = ${runs.id}
+    where ${runs.labId} = ${labId} and (${runSummaries.runId} is null or ${runSummaries.fingerprint} <> ${fingerprint})
+    on conflict (run_id) do update set
+      equivalence_volume_ml = excluded.equivalence_volume_ml, pka = excluded.pka,
+      molar_mass_g_per_mol = excluded.molar_mass_g_per_mol, concentration_m = excluded.concentration_m,
+      titrant_lot = excluded.titrant_lot, fingerprint = excluded.fingerprint`);
+}
 
 /** One page of the lab's runs with the total matching count (a window count: one query, one pass). */
 export async function listRuns(db: Executor, labId: string, q: RunListQuery) {
@@ -55,16 +73,17 @@ export async function listRuns(db: Executor, labId: string, q: RunListQuery) {
       status: runs.status,
       createdAt: runs.createdAt,
       updatedAt: runs.updatedAt,
-      equivalenceVolumeMl: ve,
-      pKa,
-      molarMassGPerMol: molarMass,
-      concentrationM: concentration,
-      titrantLot: titrantLotExpr,
+      equivalenceVolumeMl: runSummaries.equivalenceVolumeMl,
+      pKa: runSummaries.pKa,
+      molarMassGPerMol: runSummaries.molarMassGPerMol,
+      concentrationM: runSummaries.concentrationM,
+      titrantLot: runSummaries.titrantLot,
       isDemo: runs.isDemo,
       total: sql<number>`count(*) over ()`.mapWith(Number),
     })
     .from(runs)
     .innerJoin(users, eq(users.id, runs.analystId))
+    .innerJoin(runSummaries, eq(runSummaries.runId, runs.id))
     .where(filters(labId, q))
     .orderBy(order, desc(runs.createdAt), asc(runs.id))
     .limit(q.pageSize)
@@ -93,9 +112,9 @@ export async function facets(db: Executor, labId: string) {
     .where(eq(runs.labId, labId))
     .orderBy(users.displayName);
   const lots = await db
-    .selectDistinct({ lot: titrantLotExpr })
-    .from(runs)
-    .where(and(eq(runs.labId, labId), sql`${titrantLotExpr} is not null`));
+    .selectDistinct({ lot: runSummaries.titrantLot })
+    .from(runSummaries)
+    .where(and(eq(runSummaries.labId, labId), sql`${runSummaries.titrantLot} is not null`));
   return { analysts, titrantLots: lots.map((l) => l.lot!).sort() };
 }
 

@@ -26,6 +26,7 @@ const iso = (d: Date | string | null | undefined) => (d == null ? null : new Dat
 
 export async function listRuns(app: ServerContext, labId: string, q: RunListQuery): Promise<RunListResponse> {
   const db = app.database.db;
+  await repo.refreshSummaries(db, labId);
   const [rows, facets] = await Promise.all([repo.listRuns(db, labId, q), repo.facets(db, labId)]);
   const stats = new Map((await repo.readingStats(db, rows.map((r) => r.id))).map((s) => [s.runId, s]));
   return {

@@ -28,7 +28,8 @@ export const runListQuerySchema = z.object({
   titrantLot: z.string().trim().max(200).optional(),
 });
 export type RunListQuery = z.infer<typeof runListQuerySchema>;
-export type RunListQueryInput = z.input<typeof runListQuerySchema>;
+/** What a client sends: every field optional (the server fills the defaults). */
+export type RunListQueryInput = Partial<RunListQuery>;
 
 export const runRowSchema = z.object({
   id: z.string(),

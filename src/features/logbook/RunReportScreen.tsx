@@ -1,0 +1,271 @@
+import { useMemo, useState } from 'react';
+import { Platform, StyleSheet, View } from 'react-native';
+import type { AnalysisResult } from '../../../shared/schemas/run-document';
+import { APPROVAL_MEANING, type RunDetail } from '../../../shared/schemas/desk';
+import { colors, space } from '../../theme/tokens';
+import { Badge, Button, Card, Field, Screen, Text } from '../../ui';
+import { LineChart, type ChartSeries } from '../charts/LineChart';
+import { useApprove, useComment, useReopen, useReturn, useRunDetail, useSubmit } from './api';
+import { downloadFile, uploadFile } from './download';
+import { num, when, withU } from './format';
+import { useQueryClient } from '@tanstack/react-query';
+import { deskKeys } from './api';
+
+type XY = { x: number; y: number };
+
+/** A plot with zoom on the x axis (the range typed or halved around the middle) and a read-out at a chosen x. */
+function ZoomPlot({ title, series, xLabel, yLabel, testID }: { title: string; series: ChartSeries[]; xLabel: string; yLabel: string; testID: string }) {
+  const all = series.flatMap((s) => s.points as XY[]);
+  const lo = Math.min(...all.map((p) => p.x));
+  const hi = Math.max(...all.map((p) => p.x));
+  const [domain, setDomain] = useState<[number, number] | null>(null);
+  const [at, setAt] = useState('');
+  const d = domain ?? [lo, hi];
+  const zoom = (f: number) => {
+    const mid = (d[0] + d[1]) / 2;
+    const half = ((d[1] - d[0]) / 2) * f;
+    setDomain([Math.max(lo, mid - half), Math.min(hi, mid + half)]);
+  };
+  const x = Number(at.replace(',', '.'));
+  const readout = at && Number.isFinite(x)
+    ? series.map((s) => {
+        const pts = s.points as XY[];
+        let best = pts[0];
+        for (const p of pts) if (Math.abs(p.x - x) < Math.abs(best.x - x)) best = p;
+        return best ? `${s.label}: ${num(best.y, 4)} at ${num(best.x, 4)}` : '';
+      })
+    : [];
+  if (!all.length) return null;
+  return (
+    <Card title={title} testID={testID}>
+      <LineChart series={series} xLabel={xLabel} yLabel={yLabel} xDomain={d} summary={`${title}, ${all.length} points`} height={260} />
+      <View style={styles.row}>
+        <Button label="Zoom in" kind="quiet" onPress={() => zoom(0.5)} testID={`${testID}-zoom-in`} />
+        <Button label="Zoom out" kind="quiet" onPress={() => zoom(2)} />
+        <Button label="Whole curve" kind="quiet" onPress={() => setDomain(null)} />
+        <View style={{ minWidth: 160 }}>
+          <Field label={`Read at ${xLabel}`} value={at} onChangeText={setAt} keyboardType="decimal-pad" testID={`${testID}-read`} />
+        </View>
+      </View>
+      {readout.map((r) => (
+        <Text key={r} numeric variant="caption" testID={`${testID}-readout`}>
+          {r}
+        </Text>
+      ))}
+    </Card>
+  );
+}
+
+export function plotsOf(d: RunDetail) {
+  const a = d.analysis as AnalysisResult | null;
+  const inForce = d.readings.filter((r) => !r.supersededBy && r.kind !== 'deletion' && r.pH != null && r.volumeMl != null);
+  const curve: XY[] = inForce.map((r) => ({ x: r.volumeMl!, y: r.pH! }));
+  return {
+    curve,
+    derivative: (a?.derivative ?? []).map((p) => ({ x: p.volumeMl, y: p.dpHdV })),
+    granBefore: (a?.gran.before ?? []).map((p) => ({ x: p.volumeMl, y: p.value })),
+    granAfter: (a?.gran.after ?? []).map((p) => ({ x: p.volumeMl, y: p.value })),
+    residuals: a?.fit ? a.fit.residuals.map((y, i) => ({ x: a.volumesMl[i] ?? i, y })) : [],
+  };
+}
+
+export function RunReportScreen({ runId }: { runId: string }) {
+  const q = useRunDetail(runId);
+  const d = q.data;
+  if (!d) {
+    return (
+      <Screen title="Run report" testID="screen-run-report">
+        <Card>
+          <Text tone={q.error ? 'danger' : 'muted'}>{q.error ? (q.error as Error).message : 'Loading…'}</Text>
+        </Card>
+      </Screen>
+    );
+  }
+  return <Report d={d} />;
+}
+
+function Report({ d }: { d: RunDetail }) {
+  const a = d.analysis as AnalysisResult | null;
+  const plots = useMemo(() => plotsOf(d), [d]);
+  const [busy, setBusy] = useState<string | null>(null);
+  const [err, setErr] = useState<string | null>(null);
+  const run = async (label: string, f: () => Promise<unknown>) => {
+    setBusy(label);
+    setErr(null);
+    try {
+      await f();
+    } catch (e) {
+      setErr((e as Error).message);
+    } finally {
+      setBusy(null);
+    }
+  };
+  return (
+    <Screen title={d.run.sampleName} subtitle={`${d.run.analystName} · ${when(d.run.createdAt)} UTC · revision ${d.revision.revision}${d.run.isDemo ? ' · demo data' : ''}`} testID="screen-run-report">
+      <View style={styles.row}>
+        <Badge label={d.run.status} tone={d.run.status === 'approved' ? 'ok' : d.run.status === 'submitted' ? 'accent' : 'neutral'} testID="run-status" />
+        {d.revision.lockedAt && <Badge label={`locked ${when(d.revision.lockedAt)}`} tone="ok" />}
+      </View>
+      <ReviewCard d={d} />
+      <Card title="Results">
+        {a ? (
+          <View testID="results">
+            {a.equivalencePoints.map((e) => (
+              <Text key={`ve${e.step}`} numeric>Equivalence volume{a.equivalencePoints.length > 1 ? ` ${e.step}` : ''}: {withU(e.volumeMl, e.uMl, 'mL')} ({e.method})</Text>
+            ))}
+            {a.pKa.map((p, i) => (
+              <Text key={`pka${i}`} numeric>pKa{a.pKa.length > 1 ? i + 1 : ''}: {withU(p, a.pKaU[i])} ({a.fit ? 'whole-curve fit' : 'half-equivalence'}); Ka {num(a.Ka[i], 3)} mol/L</Text>
+            ))}
+            {a.molarMassGPerMol != null && <Text numeric>Molar mass: {withU(a.molarMassGPerMol, a.molarMassU, 'g/mol')}</Text>}
+            {a.analyteConcentrationM != null && <Text numeric>Concentration: {withU(a.analyteConcentrationM, a.analyteConcentrationU, 'mol/L')}</Text>}
+            <Text variant="label">Methods</Text>
+            {a.methods.map((m, i) => (
+              <Text key={i} variant="caption" numeric>{m.method} (step {m.step}): {withU(m.volumeMl, m.uMl, 'mL')}{m.note ? ` — ${m.note}` : ''}</Text>
+            ))}
+            {a.warnings.map((w) => (
+              <Text key={w} tone="warn" variant="caption">⚠ {w}</Text>
+            ))}
+          </View>
+        ) : (
+          <Text tone="muted">{d.analysisError ?? 'No analysis yet.'}</Text>
+        )}
+      </Card>
+      <ZoomPlot title="pH against volume" testID="plot-curve" xLabel="mL" yLabel="pH" series={[{ id: 'pH', label: 'pH', points: plots.curve, color: colors.curve, dots: true }]} />
+      <ZoomPlot title="Derivative" testID="plot-derivative" xLabel="mL" yLabel="dpH/dV" series={[{ id: 'd', label: 'dpH/dV', points: plots.derivative, color: colors.derivative }]} />
+      <ZoomPlot title="Gran plot" testID="plot-gran" xLabel="mL" yLabel="Gran function" series={[{ id: 'gb', label: 'before Ve', points: plots.granBefore, color: colors.acid, dots: true }, { id: 'ga', label: 'after Ve', points: plots.granAfter, color: colors.base, dots: true }]} />
+      <ZoomPlot title="Fit residuals" testID="plot-residuals" xLabel="mL" yLabel="pH residual" series={[{ id: 'res', label: 'residual', points: plots.residuals, color: colors.fit, dots: true }]} />
+      <Card title="Calibrations and titrant used">
+        {d.calibrations.map((c) => (
+          <Text key={c.kind}>
+            <Text variant="label">{c.label}: </Text>
+            {c.value} — <Text tone={c.state.includes('older') ? 'warn' : 'muted'}>{c.state}</Text>
+          </Text>
+        ))}
+      </Card>
+      <Card title="Exports">
+        <View style={styles.row}>
+          <Button label="Readings CSV" kind="secondary" busy={busy === 'r'} onPress={() => run('r', () => downloadFile(`/runs/${d.run.id}/export/readings.csv`, 'readings.csv'))} testID="export-readings" />
+          <Button label="Results CSV" kind="secondary" busy={busy === 's'} onPress={() => run('s', () => downloadFile(`/runs/${d.run.id}/export/results.csv`, 'results.csv'))} testID="export-results" />
+          <Button label="PDF report" kind="secondary" busy={busy === 'p'} onPress={() => run('p', () => downloadFile(`/runs/${d.run.id}/export/report.pdf`, 'report.pdf'))} testID="export-pdf" />
+        </View>
+        {err && <Text tone="danger">{err}</Text>}
+      </Card>
+      <Attachments d={d} />
+      <Card title={`Readings (${d.readings.length} records)`}>
+        <View testID="readings-table">
+          <View style={[styles.tr, styles.th]}>
+            {['time (s)', 'volume (mL)', 'pH', 'mV', 'record'].map((h) => (
+              <Text key={h} variant="label" style={styles.cell}>{h}</Text>
+            ))}
+          </View>
+          {d.readings.map((r) => (
+            <View key={r.id} style={[styles.tr, r.supersededBy ? styles.superseded : null]}>
+              <Text numeric style={styles.cell}>{num(r.timeS, 6)}</Text>
+              <Text numeric style={styles.cell}>{num(r.volumeMl, 5)}</Text>
+              <Text numeric style={[styles.cell, r.supersededBy ? styles.strike : null]}>{num(r.pH, 4)}</Text>
+              <Text numeric style={styles.cell}>{num(r.mV, 4)}</Text>
+              <Text variant="caption" style={styles.cell} tone={r.replacesId ? 'warn' : 'muted'}>
+                {r.kind === 'deletion' ? `withdrawn: ${r.reason}` : r.replacesId ? `correction: ${r.reason}` : r.supersededBy ? 'superseded' : 'reading'}
+              </Text>
+            </View>
+          ))}
+        </View>
+      </Card>
+      <Comments d={d} />
+      <Card title="History">
+        {d.history.map((h, i) => (
+          <Text key={i} variant="caption">{when(h.at)} · {h.actorName ?? 'device'} · {h.detail}</Text>
+        ))}
+      </Card>
+    </Screen>
+  );
+}
+
+function ReviewCard({ d }: { d: RunDetail }) {
+  const submit = useSubmit(d.run.id);
+  const ret = useReturn(d.run.id);
+  const approve = useApprove(d.run.id);
+  const reopen = useReopen(d.run.id);
+  const [password, setPassword] = useState('');
+  const [comment, setComment] = useState('');
+  const error = [submit, ret, approve, reopen].find((m) => m.error)?.error as Error | undefined;
+  if (!d.can.submit && !d.can.review && !d.can.reopen && !d.review.length) return null;
+  return (
+    <Card title="Review" testID="review-card">
+      {d.review.map((r) => (
+        <Text key={r.id} variant="caption">{when(r.at)} · {r.kind} by {r.actorName}{r.comment ? `: ${r.comment}` : ''}{r.meaning ? ` — ${r.meaning}` : ''}</Text>
+      ))}
+      {d.can.submit && <Button label="Submit for review" busy={submit.isPending} onPress={() => submit.mutate({ note: '' })} testID="review-submit" />}
+      {d.can.review && (
+        <View style={{ gap: space.sm }}>
+          <Text tone="muted" variant="caption">Approving signs this run: {APPROVAL_MEANING}</Text>
+          <Field label="Comment (needed to return)" value={comment} onChangeText={setComment} testID="review-comment" />
+          <Field label="Your password (to sign)" value={password} onChangeText={setPassword} secureTextEntry testID="review-password" />
+          <View style={styles.row}>
+            <Button label="Approve" busy={approve.isPending} disabled={!password} onPress={() => approve.mutate({ password, comment }, { onSettled: () => setPassword('') })} testID="review-approve" />
+            <Button label="Return to analyst" kind="secondary" busy={ret.isPending} disabled={!comment.trim()} onPress={() => ret.mutate({ comment })} testID="review-return" />
+          </View>
+        </View>
+      )}
+      {d.can.reopen && <Button label="Open a new revision" kind="secondary" onPress={() => reopen.mutate({ reason: comment || 'Change after approval' })} testID="review-reopen" />}
+      {error && <Text tone="danger" testID="review-error">{error.message}</Text>}
+    </Card>
+  );
+}
+
+function Comments({ d }: { d: RunDetail }) {
+  const add = useComment(d.run.id);
+  const [body, setBody] = useState('');
+  return (
+    <Card title="Comments" testID="comments">
+      {d.comments.map((c) => (
+        <Text key={c.id}><Text variant="label">{c.authorName}</Text> <Text variant="caption" tone="muted">{when(c.createdAt)}</Text>{'\n'}{c.body}</Text>
+      ))}
+      <Field label="Add a comment" value={body} onChangeText={setBody} multiline testID="comment-body" />
+      <Button label="Post comment" disabled={!body.trim()} busy={add.isPending} onPress={() => add.mutate({ body }, { onSuccess: () => setBody('') })} testID="comment-post" />
+      {add.error && <Text tone="danger">{(add.error as Error).message}</Text>}
+    </Card>
+  );
+}
+
+function Attachments({ d }: { d: RunDetail }) {
+  const qc = useQueryClient();
+  const [err, setErr] = useState<string | null>(null);
+  const pick = () => {
+    if (Platform.OS !== 'web' || typeof document === 'undefined') return;
+    const input = document.createElement('input');
+    input.type = 'file';
+    input.accept = 'image/png,image/jpeg,image/webp,image/heic,application/pdf';
+    input.onchange = async () => {
+      const f = input.files?.[0];
+      if (!f) return;
+      setErr(null);
+      try {
+        await uploadFile(`/runs/${d.run.id}/attachments`, f);
+        await qc.invalidateQueries({ queryKey: deskKeys.run(d.run.id) });
+      } catch (e) {
+        setErr((e as Error).message);
+      }
+    };
+    input.click();
+  };
+  return (
+    <Card title="Attachments" testID="attachments">
+      {d.attachments.map((f) => (
+        <Button key={f.id} kind="quiet" label={`${f.originalName} (${Math.ceil(f.sizeBytes / 1024)} KB, ${f.uploadedByName})`} onPress={() => void downloadFile(`/attachments/${f.id}`, f.originalName)} testID={`attachment-${f.originalName}`} />
+      ))}
+      {!d.attachments.length && <Text tone="muted">No files attached.</Text>}
+      {d.can.attach && <Button label="Attach a photo or PDF" kind="secondary" onPress={pick} testID="attach-file" />}
+      {err && <Text tone="danger" testID="attach-error">{err}</Text>}
+    </Card>
+  );
+}
+
+const styles = StyleSheet.create({
+  row: { flexDirection: 'row', flexWrap: 'wrap', gap: space.sm, alignItems: 'flex-end' },
+  tr: { flexDirection: 'row', borderBottomWidth: 1, borderBottomColor: colors.grid, minHeight: 32, alignItems: 'center' },
+  th: { borderBottomColor: colors.lineStrong },
+  cell: { flex: 1 },
+  superseded: { backgroundColor: colors.sunken },
+  strike: { textDecorationLine: 'line-through' },
+});

@@ -1,0 +1,16 @@
+/** Numbers as the desk shows them: significant figures, a dash for nothing. */
+export function num(x: number | null | undefined, digits = 4): string {
+  if (x == null || !Number.isFinite(x)) return '—';
+  return Number(x.toPrecision(digits)).toString();
+}
+
+/** value ± u with the uncertainty's two significant figures deciding the decimals (GUM 7.2.6 practice). */
+export function withU(x: number | null | undefined, u: number | null | undefined, unit = ''): string {
+  if (x == null || !Number.isFinite(x)) return '—';
+  if (u == null || !Number.isFinite(u) || u <= 0) return `${num(x, 5)}${unit ? ` ${unit}` : ''}`;
+  const decimals = Math.max(0, 1 - Math.floor(Math.log10(u)));
+  return `${x.toFixed(decimals)} ± ${u.toFixed(decimals)}${unit ? ` ${unit}` : ''}`;
+}
+
+export const day = (iso: string) => iso.slice(0, 10);
+export const when = (iso: string) => iso.slice(0, 16).replace('T', ' ');
