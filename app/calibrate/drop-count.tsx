@@ -1,0 +1,5 @@
+import { DropCountScreen } from '../../src/features/calibrate/TapSeriesScreens';
+
+export default function Route() {
+  return <DropCountScreen />;
+}

@@ -1,0 +1,5 @@
+import { ElectrodeScreen } from '../../src/features/calibrate/ElectrodeScreen';
+
+export default function Route() {
+  return <ElectrodeScreen />;
+}

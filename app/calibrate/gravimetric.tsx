@@ -1,0 +1,5 @@
+import { GravimetricScreen } from '../../src/features/calibrate/GravimetricScreen';
+
+export default function Route() {
+  return <GravimetricScreen />;
+}

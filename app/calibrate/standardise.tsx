@@ -1,0 +1,5 @@
+import { StandardisationScreen } from '../../src/features/calibrate/StandardisationScreen';
+
+export default function Route() {
+  return <StandardisationScreen />;
+}
