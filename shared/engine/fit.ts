@@ -1,7 +1,7 @@
 // Whole-curve weighted least squares of the charge-balance model by Levenberg–Marquardt (Levenberg 1944,
 // Marquardt 1963; Nielsen's damping update). Parameters: pKa_1..n, the first equivalence volume Ve1 (mL, the acid
 // amount is Cb·Ve1), and optionally an electrode offset (pH). The Jacobian is analytic (implicit differentiation of
-// the charge balance, activity coefficients held fixed), so each iteration costs one model pass.
+// the charge balance and the ionic strength), so each iteration costs one model pass.
 import { ChargeBalanceModel } from './model';
 
 export interface FitStart {
@@ -114,6 +114,7 @@ export function fitCurve(
   const step = new Float64Array(P);
   const L = new Float64Array(P * P);
   const pk = new Float64Array(n);
+  const grad = new Float64Array(n + 1);
 
   /** weighted residuals into `out` (and Jacobian when `jac`); returns the cost ½Σ(w r²). */
   const evaluate = (par: Float64Array, out: Float64Array, jac: boolean): number => {
@@ -128,8 +129,9 @@ export function fitCurve(
       cost += ri * ri;
       if (jac) {
         const row = i * P;
-        for (let k = 0; k < n; k++) J[row + k] = model.dpHdpKa(k) * sw[i];
-        J[row + n] = model.dpHdAmount(V[i]) * Cb * sw[i];
+        model.gradient(V[i], grad);
+        for (let k = 0; k < n; k++) J[row + k] = grad[k] * sw[i];
+        J[row + n] = grad[n] * Cb * sw[i];
         if (fitOffset) J[row + n + 1] = sw[i];
       }
     }
@@ -174,7 +176,7 @@ export function fitCurve(
     let small = true;
     for (let a = 0; a < P; a++) {
       trial[a] = p[a] + step[a];
-      if (Math.abs(step[a]) > 1e-12 * (Math.abs(p[a]) + 1e-9)) small = false;
+      if (Math.abs(step[a]) > 1e-10 * (Math.abs(p[a]) + 1e-9)) small = false;
     }
     if (small) { converged = true; break; }
     let valid = trial[n] > 0;
@@ -183,6 +185,8 @@ export function fitCurve(
     // predicted reduction of the quadratic model: −gᵀs − ½ sᵀJᵀJs = ½ sᵀ(μD s − g)
     let pred = 0;
     for (let a = 0; a < P; a++) pred += 0.5 * step[a] * (mu * Math.max(JtJ[a * P + a], 1e-300) * step[a] - g[a]);
+    // nothing left to gain beyond rounding: the quadratic model itself promises less than 1e-12 of the cost
+    if (pred <= 1e-12 * cost) { converged = true; break; }
     const rho = (cost - newCost) / pred;
     if (newCost < cost && rho > 0) {
       const rel = (cost - newCost) / Math.max(cost, 1e-300);
@@ -191,7 +195,7 @@ export function fitCurve(
       normal();
       mu *= Math.max(1 / 3, 1 - Math.pow(2 * rho - 1, 3));
       nu = 2;
-      if (rel < 1e-12) { converged = true; it++; break; }
+      if (rel < 1e-10) { converged = true; it++; break; }
     } else {
       mu *= nu;
       nu *= 2;

@@ -80,3 +80,35 @@ describe('exact charge-balance model (de Levie, J. Chem. Educ. 70 (1993) 209)', 
     expect(dirty.pHAt(30, 2.5)).toBeLessThan(clean.pHAt(30, 2.5) - 0.01);
   });
 });
+
+describe('analytic Jacobian of the model (implicit differentiation)', () => {
+  for (const activity of ['none', 'davies'] as const) {
+    it(`matches central finite differences (${activity}, triprotic phosphoric constants, across the curve)`, () => {
+      const pKa = [2.148, 7.198, 12.375];
+      const amount = 1.25;
+      const m = new ChargeBalanceModel({ sampleVolumeMl: 25, titrantM: 0.1, activity });
+      const g = new Float64Array(4);
+      for (const V of [0.5, 6, 12.5, 18, 24.9, 31, 40]) {
+        m.setPKa(pKa);
+        m.pHAt(V, amount);
+        m.gradient(V, g);
+        for (let k = 0; k < 3; k++) {
+          const d = 1e-5;
+          const up = pKa.slice();
+          const dn = pKa.slice();
+          up[k] += d;
+          dn[k] -= d;
+          m.setPKa(up);
+          const a = m.pHAt(V, amount);
+          m.setPKa(dn);
+          const b = m.pHAt(V, amount);
+          expect(g[k]).toBeCloseTo((a - b) / (2 * d), 5);
+        }
+        m.setPKa(pKa);
+        const d = 1e-6;
+        const fd = (m.pHAt(V, amount + d) - m.pHAt(V, amount - d)) / (2 * d);
+        expect(g[3]).toBeCloseTo(fd, 4);
+      }
+    });
+  }
+});

@@ -179,7 +179,7 @@ export class ChargeBalanceModel {
     let gp = g2;
     for (let j = 0; j < this.n; j++) {
       this.Kc[j] = this.KT[j] * gp;
-      gp *= g;
+      gp *= g2;
     }
     this.Kwc = this.KwT * g2;
     this.ck1 = this.ck1T * g2;
@@ -264,15 +264,68 @@ export class ChargeBalanceModel {
     return h + Na - oh - Ct * nbar - Cct * cnbar;
   }
 
-  /** ∂pH/∂pKa_k (k from 0) at the last solved point, activity coefficients held fixed. */
-  dpHdpKa(k: number): number {
-    let s = 0;
-    for (let j = k + 1; j <= this.n; j++) s += this.alpha[j] * (j - this.nbar);
-    return (this.Ct * s) / this.dFdlnh;
-  }
-  /** ∂pH/∂(amount, mmol) at the last solved point V. */
-  dpHdAmount(V: number): number {
-    return -this.nbar / (this.V0 + V) / (LN10 * this.dFdlnh);
+  /** Exact ∂pH/∂pKa_k (out[k], k < n) and ∂pH/∂amount (out[n], per mmol) at the last solved point, volume V.
+   * Implicit differentiation of the charge balance F(ln h, I) = 0 and, with Davies, of the ionic-strength equation
+   * I = h + Na + ½ Ct Σ j(j−1) α_j as well (carbonate's small share of the I-dependence is left out). */
+  gradient(V: number, out: Float64Array | number[]): void {
+    const n = this.n;
+    const al = this.alpha;
+    const nbar = this.nbar;
+    const Ct = this.Ct;
+    const Vt = this.V0 + V;
+    const h = this.h;
+    const Fx = this.dFdlnh;
+    if (this.activity === 'none') {
+      for (let k = 0; k < n; k++) {
+        let sk = 0;
+        for (let j = k + 1; j <= n; j++) sk += al[j] * (j - nbar);
+        out[k] = (Ct * sk) / Fx;
+      }
+      out[n] = -nbar / Vt / (LN10 * Fx);
+      return;
+    }
+    const I = this.ionicStrength;
+    const sI = Math.sqrt(I);
+    const fp = 1 / (2 * sI * (1 + sI) * (1 + sI)) - 0.3; // f'(I), f = √I/(1+√I) − 0.3 I
+    const c = LN10 * this.A * fp; // d ln g / dI
+    const oh = this.Kwc / h;
+    let Q = 0; // Σ j(j−1) α_j
+    let M = 0; // Σ j(j+1) α_j
+    let Qx = 0; // Σ j(j−1) α_j (n̄ − j)
+    for (let j = 0; j <= n; j++) {
+      Q += j * (j - 1) * al[j];
+      M += j * (j + 1) * al[j];
+      Qx += j * (j - 1) * al[j] * (nbar - j);
+    }
+    let sumS = 0;
+    for (let k = 0; k < n; k++) {
+      let sk = 0;
+      for (let j = k + 1; j <= n; j++) sk += al[j] * (j - nbar);
+      sumS += (2 * k + 2) * sk;
+    }
+    let QI = 0;
+    for (let j = 0; j <= n; j++) QI += j * (j - 1) * al[j] * (j * (j + 1) - M);
+    const FI = -2 * c * oh - Ct * c * sumS;
+    const Gx = -h - 0.5 * Ct * Qx;
+    const GI = 1 - 0.5 * Ct * c * QI;
+    const det = Fx * GI - FI * Gx;
+    const dpH = (Fp: number, Gp: number) => {
+      const dx = (-Fp * GI + FI * Gp) / det;
+      const dI = (-Gp * Fx + Gx * Fp) / det;
+      return -dx / LN10 + this.A * fp * dI;
+    };
+    for (let k = 0; k < n; k++) {
+      let sk = 0;
+      let pk = 0;
+      for (let j = k + 1; j <= n; j++) {
+        sk += al[j] * (j - nbar);
+        pk += al[j];
+      }
+      let gq = 0;
+      for (let j = 0; j <= n; j++) gq += j * (j - 1) * al[j] * ((j > k ? 1 : 0) - pk);
+      out[k] = dpH(Ct * LN10 * sk, 0.5 * Ct * LN10 * gq);
+    }
+    out[n] = dpH(-nbar / Vt, (-0.5 * Q) / Vt);
   }
 
   /** Explicit volume at a given pH (de Levie's form V = V0 (Ca n̄ − Δ)/(Cb − Cc n̄c + Δ)); negative or non-finite

@@ -9,7 +9,8 @@ import { effectiveWeights, fitCurve } from '../fit';
 import { ChargeBalanceModel } from '../model';
 import { localPolyValue, savitzkyGolay } from '../savgol';
 
-export function fitProblem(input: RunDocumentInput, steps = 1) {
+/** `ve1Guess` replaces the steepest-reading start for curves whose steepest break is not the first. */
+export function fitProblem(input: RunDocumentInput, steps = 1, ve1Guess?: number) {
   const doc = runDocumentSchema.parse(input);
   const T = doc.temperatureC ?? 25;
   const activity = doc.activity ?? 'davies';
@@ -22,10 +23,11 @@ export function fitProblem(input: RunDocumentInput, steps = 1) {
   // start: volume of the steepest reading, pKa guesses from the pH at (j − ½)·Ve1
   let k = 1;
   for (let i = 1; i < V.length - 1; i++) if (sg.d1[i] > sg.d1[k]) k = i;
-  const ve1 = V[k] / steps;
+  const ve1 = ve1Guess ?? V[k];
   const pKa = Array.from({ length: steps }, (_, j) => localPolyValue(V, pH, (j + 0.5) * ve1));
   const setup = { sampleVolumeMl: doc.sample.volumeMl, titrantM: doc.titrant.concentrationM, temperatureC: T, activity };
-  const payload = { V0: setup.sampleVolumeMl, Cb: setup.titrantM, pKw: pKw(T), A: daviesA(T), activity, V, pH, w: Array.from(w), start: [...pKa, ve1] };
+  const payload = { steps, V0: setup.sampleVolumeMl, Cb: setup.titrantM, pKw: pKw(T), A: daviesA(T), activity, V, pH, w: Array.from(w), start: [...pKa, ve1] };
   const ours = () => fitCurve(new ChargeBalanceModel(setup), V, pH, w, { pKa, ve1Ml: ve1 });
   return { payload, ours };
 }
+export type FitProblem = ReturnType<typeof fitProblem>;

@@ -2,7 +2,10 @@
 Levenberg-Marquardt), on the same data, weights and charge-balance model (de Levie 1993; Davies activity).
 
 Reads one JSON object on stdin:
-  {V0, Cb, pKw, A, activity: 'davies'|'none', V: [...], pH: [...], w: [...], start: [pKa..., ve1], repeat?: int}
+  {V0, Cb, pKw, A, activity: 'davies'|'none', V: [...], pH: [...], w: [...], start: [pKa..., ve1], repeat?: int,
+   jac?: '2-point' | 'analytic'}
+'2-point' (the default) lets scipy difference the model itself, so nothing of the engine's derivatives is shared;
+'analytic' uses the Jacobian with activity coefficients held fixed (cheaper per iteration).
 Prints one JSON object: {x: [...], cost, nfev, seconds: [per-fit wall times]}. Used by the engine's tests and the
 benchmark; not part of the app.
 """
@@ -86,13 +89,14 @@ def main():
     repeat = int(d.get("repeat", 1))
     out = None
     seconds = []
+    use_analytic = d.get("jac", "2-point") == "analytic"
     for _ in range(repeat):
         model, jac = make_model(d)
         t0 = time.perf_counter()
         out = least_squares(
             lambda p: (model(p) - pH_obs) * sw,
             x0,
-            jac=lambda p: jac(p) * sw[:, None],
+            jac=(lambda p: jac(p) * sw[:, None]) if use_analytic else "2-point",
             method="lm",
             xtol=1e-15,
             ftol=1e-15,
