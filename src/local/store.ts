@@ -68,6 +68,19 @@ export class LocalStore {
     return next;
   }
 
+  /**
+   * For the sync (src/sync/localStore.ts) only: runs `work` as one transaction in the same write queue as every
+   * other write here, so its statements never interleave with a recording.
+   */
+  syncWrite<T>(work: (db: Db) => Promise<T>): Promise<T> {
+    return this.write(() => work(this.db));
+  }
+
+  /** For the sync: read access to the same database. */
+  get syncDb(): Db {
+    return this.db;
+  }
+
   private async outbox(entity: Entity, recordId: string, op: 'insert' | 'update', payload: unknown): Promise<void> {
     await this.db.runAsync(
       'INSERT INTO outbox (entity, record_id, op, payload_json, created_wall_ms) VALUES (?, ?, ?, ?, ?)',

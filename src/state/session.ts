@@ -17,6 +17,9 @@ export interface SessionState {
   accessTokenExpiresAt: string | null;
   /** The server said the sign-in has ended (refresh refused); the app asks to sign in again when online. */
   signedOutByServer: boolean;
+  /** Local changes not yet on the server (set by src/sync; not persisted). Signing out warns while above zero. */
+  unsynced: number;
+  setUnsynced(n: number): void;
   setSession(s: SessionResponse): void;
   setMe(me: { user: SessionUser; labs: LabMembership[] }): void;
   setActiveLab(labId: string): void;
@@ -36,6 +39,8 @@ export const useSession = create<SessionState>()(
       accessToken: null,
       accessTokenExpiresAt: null,
       signedOutByServer: false,
+      unsynced: 0,
+      setUnsynced: (n) => set({ unsynced: n }),
       setSession: (s) =>
         set((st) => ({
           user: s.user,

@@ -9,22 +9,30 @@ export interface HttpTransportOptions {
   baseUrl?: string;
   /** The bearer access token, refreshed by the accounts client; null when signed out. */
   accessToken: () => Promise<string | null>;
+  /** Called once on a 401 for a fresh token (the accounts client's refresh); null: signed out. */
+  refresh?: () => Promise<string | null>;
   fetch?: typeof fetch;
 }
 
 export function httpTransport(o: HttpTransportOptions): SyncTransport {
   const f = o.fetch ?? fetch;
-  async function call(path: string, init: RequestInit): Promise<unknown> {
-    const token = await o.accessToken();
-    if (!token) throw new TransportError('auth', 'Not signed in.');
-    let res: Response;
+  async function send(path: string, init: RequestInit, token: string): Promise<Response> {
     try {
-      res = await f(`${o.baseUrl ?? ''}/api${path}`, {
+      return await f(`${o.baseUrl ?? ''}/api${path}`, {
         ...init,
         headers: { accept: 'application/json', authorization: `Bearer ${token}`, ...(init.body ? { 'content-type': 'application/json' } : {}) },
       });
     } catch (err) {
       throw new TransportError('offline', err instanceof Error ? err.message : 'The server could not be reached.');
+    }
+  }
+  async function call(path: string, init: RequestInit): Promise<unknown> {
+    let token = (await o.accessToken()) ?? (await o.refresh?.()) ?? null;
+    if (!token) throw new TransportError('auth', 'Not signed in.');
+    let res = await send(path, init, token);
+    if (res.status === 401 && o.refresh) {
+      token = await o.refresh();
+      if (token) res = await send(path, init, token);
     }
     const body = await res.json().catch(() => null);
     if (res.ok) return body;

@@ -10,6 +10,7 @@ import type {
 import { api } from '../../api/client';
 import { keys } from '../../api/keys';
 import { useSession } from '../../state/session';
+import { confirmLeave } from '../../sync/confirmLeave';
 
 const post = <T>(path: string, body?: unknown) => api<T>(path, { method: 'POST', body, anonymous: true });
 
@@ -25,9 +26,15 @@ export function useSignOut() {
   const qc = useQueryClient();
   const signOutLocally = useSession((s) => s.signOutLocally);
   return useMutation({
-    mutationFn: () => api<void>('/auth/logout', { method: 'POST' }),
+    mutationFn: async () => {
+      // Unsynced work is never discarded; the analyst is asked first and it goes out after the next sign-in.
+      const waiting = useSession.getState().unsynced;
+      if (waiting > 0 && !(await confirmLeave(waiting))) return 'stayed' as const;
+      await api<void>('/auth/logout', { method: 'POST' });
+    },
     // Forget locally even when the server cannot be reached; the session then ends when the cookie expires.
-    onSettled: () => {
+    onSettled: (outcome) => {
+      if (outcome === 'stayed') return;
       signOutLocally();
       qc.clear();
     },

@@ -1,0 +1,107 @@
+import { describe, expect, it } from 'vitest';
+import type { PushRequest, PushResponse } from '../../shared/schemas/sync';
+import { describeSync } from './describe';
+import { SyncEngine, TransportError, type SyncTransport } from './engine';
+import { MemoryDevice } from './memoryStore';
+
+const LAB = '0190a3b0-0000-7000-8000-000000000001';
+
+/** A server stand-in that accepts everything, except payloads it is told to reject. */
+function fakeServer(opts: { reject?: (c: PushRequest['changes'][number]) => string | null; fail?: () => TransportError | null } = {}) {
+  const pushes: PushRequest[] = [];
+  const t: SyncTransport = {
+    async push(req) {
+      const err = opts.fail?.();
+      if (err) throw err;
+      pushes.push(req);
+      const results = req.changes.map((c) => {
+        const why = opts.reject?.(c) ?? null;
+        return why ? { id: c.id, seq: c.seq, outcome: 'rejected' as const, status: 422, reason: why } : { id: c.id, seq: c.seq, outcome: 'accepted' as const, status: 201 };
+      });
+      return { results, lastSeq: req.changes.at(-1)!.seq, serverTime: new Date().toISOString(), clockOffsetMs: 0, clockFlagged: false } satisfies PushResponse;
+    },
+    async pull(cursor) {
+      return { changes: [], cursor, more: false };
+    },
+  };
+  return { t, pushes };
+}
+const noTimers = { setTimer: () => null, clearTimer: () => {} };
+
+describe('sync engine', () => {
+  it('pushes in bounded batches, in outbox order, marks never sent, all acknowledged', async () => {
+    const dev = new MemoryDevice('u1');
+    const run = dev.createRun(LAB);
+    for (let i = 0; i < 25; i++) dev.addReading(run.id, i, 4);
+    const { t, pushes } = fakeServer();
+    const e = new SyncEngine(dev, t, { ...noTimers, maxChanges: 10 });
+    await e.sync();
+    expect(pushes.length).toBe(3);
+    expect(pushes.every((p) => p.changes.length <= 10)).toBe(true);
+    const seqs = pushes.flatMap((p) => p.changes.map((c) => c.seq));
+    expect(seqs).toEqual([...seqs].sort((a, b) => a - b));
+    expect(pushes.flatMap((p) => p.changes.map((c) => c.kind)).filter((k) => k === 'reading').length).toBe(25);
+    expect(dev.outbox.every((o) => o.state === 'acked')).toBe(true);
+    expect(e.status.state).toBe('synced');
+  });
+
+  it('a rejected change is kept with its reason and does not block the rest', async () => {
+    const dev = new MemoryDevice('u1');
+    const run = dev.createRun(LAB);
+    dev.addReading(run.id, 1, 4);
+    const bad = dev.addReading(run.id, 2, 4.5);
+    dev.addReading(run.id, 3, 5);
+    const { t } = fakeServer({ reject: (c) => (c.id === bad.id ? 'pH out of range' : null) });
+    const e = new SyncEngine(dev, t, noTimers);
+    await e.sync();
+    const row = dev.outbox.find((o) => o.recordId === bad.id)!;
+    expect(row).toMatchObject({ state: 'rejected', lastError: 'pH out of range' });
+    expect(dev.outbox.filter((o) => o.state === 'acked').length).toBe(dev.outbox.length - 1);
+    expect(e.status).toMatchObject({ state: 'synced', rejected: 1, waiting: 0 });
+    expect(describeSync(e.status, true)).toEqual({ label: 'All sent · 1 rejected', tone: 'danger' });
+  });
+
+  it('a run with no lab waits (and everything after it), and says why', async () => {
+    const dev = new MemoryDevice('u1');
+    const run = dev.createRun(LAB);
+    dev.runs.set(run.id, { ...dev.runs.get(run.id)!, labId: null });
+    dev.addReading(run.id, 1, 4);
+    const { t, pushes } = fakeServer();
+    const e = new SyncEngine(dev, t, noTimers);
+    await e.sync();
+    expect(pushes).toEqual([]);
+    expect(e.status).toMatchObject({ state: 'waiting', waiting: 3 });
+    expect(e.status.message).toMatch(/no lab/);
+  });
+
+  it('offline: nothing lost, backoff grows, a later sync sends everything once; calls during a sync share it', async () => {
+    const dev = new MemoryDevice('u1');
+    const run = dev.createRun(LAB);
+    dev.addReading(run.id, 1, 4);
+    let down = true;
+    const delays: number[] = [];
+    const { t, pushes } = fakeServer({ fail: () => (down ? new TransportError('offline', 'no network') : null) });
+    const e = new SyncEngine(dev, t, { setTimer: (_f, ms) => delays.push(ms), clearTimer: () => {}, random: () => 1, baseBackoffMs: 1000 });
+    await e.sync();
+    await e.sync();
+    await e.sync();
+    expect(e.status.state).toBe('offline');
+    expect(delays).toEqual([2000, 4000, 8000]);
+    down = false;
+    const a = e.sync();
+    const b = e.sync();
+    await Promise.all([a, b]);
+    expect(pushes.length).toBe(1);
+    expect(dev.outbox.every((o) => o.state === 'acked')).toBe(true);
+  });
+
+  it('a 401 leaves everything queued and says to sign in', async () => {
+    const dev = new MemoryDevice('u1');
+    dev.createRun(LAB);
+    const { t } = fakeServer({ fail: () => new TransportError('auth', 'expired', 401) });
+    const e = new SyncEngine(dev, t, noTimers);
+    await e.sync();
+    expect(e.status).toMatchObject({ state: 'signed-out', waiting: 1 });
+    expect(describeSync(e.status, true).label).toBe('Sign in to send 1 waiting');
+  });
+});
