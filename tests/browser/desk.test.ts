@@ -1,0 +1,105 @@
+import Papa from 'papaparse';
+import { readFileSync } from 'node:fs';
+import type { Page } from 'playwright-core';
+import { afterAll, describe, expect, it } from 'vitest';
+import { DEMO_USERS } from '../../server/demo/seed';
+import { closeBrowser, DESKTOP, openApp, PHONE, shot } from './harness';
+
+afterAll(closeBrowser);
+
+async function signIn(page: Page, role: 'viewer' | 'manager' | 'analyst') {
+  const u = DEMO_USERS.find((d) => d.role === role)!;
+  await page.goto('/sign-in');
+  await page.getByTestId('sign-in-email').fill(u.email);
+  await page.getByTestId('sign-in-password').fill(u.password);
+  await page.getByTestId('sign-in-submit').click();
+  await page.waitForURL((url) => !url.pathname.startsWith('/sign-in'));
+  return u;
+}
+
+describe('the team desk', () => {
+  for (const [label, viewport] of [['desktop', DESKTOP], ['phone', PHONE]] as const) {
+    it(`a viewer filters the table, opens a run, compares two, and cannot approve (${label})`, async () => {
+      const app = await openApp('/', { viewport });
+      const { page } = app;
+      await signIn(page, 'viewer');
+      await page.goto('/logbook');
+      await page.getByTestId(label === 'desktop' ? 'runs-table' : 'runs-cards').waitFor();
+      const rows = page.locator('[data-testid^="run-row-"]');
+      await expect.poll(() => rows.count()).toBeGreaterThanOrEqual(6);
+      await shot(page, `desk-logbook-${label}`);
+      await page.getByTestId('filter-status-submitted').click();
+      await expect.poll(() => rows.count()).toBe(2);
+      await shot(page, `desk-logbook-filtered-${label}`);
+      await page.getByTestId('filter-status-all').click();
+      await expect.poll(() => rows.count()).toBeGreaterThanOrEqual(6);
+      const ids = await rows.evaluateAll((els) => els.map((e) => e.getAttribute('data-testid')!.slice('run-row-'.length)));
+      await page.getByTestId(`select-${ids[0]}`).click();
+      await page.getByTestId(`select-${ids[1]}`).click();
+      await page.getByTestId('compare-selected').click();
+      await page.getByTestId('screen-compare').waitFor();
+      await page.getByTestId('compare-results').getByText('Ve ').first().waitFor();
+      await page.getByTestId('align-fraction').click();
+      await shot(page, `desk-compare-${label}`);
+      await page.goto(`/logbook/${ids[0]}`);
+      await page.getByTestId('results').waitFor({ timeout: 30_000 });
+      await page.getByTestId('readings-table').waitFor();
+      expect(await page.getByTestId('review-approve').count()).toBe(0);
+      await shot(page, `desk-report-${label}`);
+      await app.close();
+    });
+  }
+
+  it('a manager approves a submitted run after re-entering the password; a wrong password is refused', async () => {
+    const app = await openApp('/', { viewport: DESKTOP });
+    const { page } = app;
+    await signIn(page, 'manager');
+    await page.goto('/logbook');
+    await page.getByTestId('filter-status-submitted').click();
+    const rows = page.locator('[data-testid^="run-row-"]');
+    await expect.poll(() => rows.count()).toBeGreaterThanOrEqual(1);
+    const id = (await rows.first().getAttribute('data-testid'))!.slice('run-row-'.length);
+    await page.goto(`/logbook/${id}`);
+    await page.getByTestId('review-password').fill('not the password');
+    await page.getByTestId('review-approve').click();
+    await page.getByTestId('review-error').waitFor();
+    expect(await page.getByTestId('review-error').innerText()).toMatch(/password is not right/);
+    await page.getByTestId('review-password').fill(DEMO_USERS.find((u) => u.role === 'manager')!.password);
+    await page.getByTestId('review-approve').click();
+    await page.getByTestId('run-status').getByText('approved').waitFor();
+    await shot(page, 'desk-approved-desktop');
+    await app.close();
+  });
+
+  it('an import with a bad row shows the error and imports nothing; the export CSV parses back', async () => {
+    const app = await openApp('/', { viewport: DESKTOP, allowConsole: ['422'] });
+    const { page } = app;
+    await signIn(page, 'analyst');
+    await page.goto('/logbook/import');
+    const csv = ['time_s,pH', '0,3.10', '10,3.40', '20,abc', '30,4.00'].join('\n');
+    await page.getByTestId('import-text').fill(csv);
+    await page.getByTestId('import-mapping').waitFor();
+    await page.getByTestId('map-pH-pH').click();
+    await page.getByTestId('import-preview-errors').getByText('Line 4').waitFor();
+    await page.getByTestId('import-sample').fill('Browser import (demo)');
+    await page.getByTestId('import-submit').click();
+    await page.getByTestId('import-error').getByText('nothing was imported').waitFor();
+    await shot(page, 'desk-import-error-desktop');
+    await page.goto('/logbook');
+    await page.getByTestId('filter-search').fill('Browser import');
+    await page.getByText('No run matches these filters.').waitFor();
+    // Export of a demo run.
+    await page.getByTestId('filter-search').fill('');
+    const first = page.locator('[data-testid^="run-row-"]').first();
+    await first.waitFor();
+    const id = (await first.getAttribute('data-testid'))!.slice('run-row-'.length);
+    await page.goto(`/logbook/${id}`);
+    const [download] = await Promise.all([page.waitForEvent('download'), page.getByTestId('export-readings').click()]);
+    const text = readFileSync((await download.path())!, 'utf8');
+    const parsed = Papa.parse<Record<string, unknown>>(text, { header: true, dynamicTyping: true, skipEmptyLines: true });
+    expect(parsed.errors).toEqual([]);
+    expect(parsed.data.length).toBeGreaterThan(20);
+    expect(typeof parsed.data[0].pH).toBe('number');
+    await app.close();
+  });
+});
