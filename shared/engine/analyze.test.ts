@@ -81,6 +81,32 @@ describe('analyzeRun recovers the inputs of curves simulated from handbook const
   });
 });
 
+describe('optional model terms', () => {
+  it('fits an electrode offset when asked (simulated offset +0.06 pH on acetic acid, pKa 4.756)', () => {
+    const { doc, trueVeMl } = syntheticRun({ pKa: [4.756], concentrationM: 0.1, seed: 14, electrodeOffset: 0.06 });
+    const r = run({ ...doc, fitElectrodeOffset: true });
+    expect(r.fit!.electrodeOffset!).toBeCloseTo(0.06, 1);
+    expect(Math.abs(r.fit!.electrodeOffset! - 0.06)).toBeLessThan(0.02);
+    expect(Math.abs(r.pKaThermodynamic[0] - 4.756)).toBeLessThan(0.03);
+    expect(Math.abs(r.equivalencePoints[0].volumeMl / trueVeMl[0] - 1)).toBeLessThan(0.003);
+    // without the offset term the same data give a pKa off by about the offset
+    const plain = run(doc);
+    expect(Math.abs(plain.pKaThermodynamic[0] - 4.756)).toBeGreaterThan(0.03);
+  });
+
+  it('accounts for carbonate in the titrant when its concentration is given (2 % of the NaOH as carbonate)', () => {
+    const { doc, trueVeMl } = syntheticRun({ pKa: [4.756], concentrationM: 0.1, seed: 15, carbonateM: 0.002 });
+    const r = run(doc);
+    expect(Math.abs(r.equivalencePoints[0].volumeMl / trueVeMl[0] - 1)).toBeLessThan(0.003);
+    expect(Math.abs(r.pKaThermodynamic[0] - 4.756)).toBeLessThan(0.03);
+    expect(r.fit!.rmse).toBeLessThan(0.01);
+    // ignoring it leaves a visibly worse fit of the same readings
+    const { carbonateM: _ignored, ...titrant } = doc.titrant;
+    const blind = run({ ...doc, titrant });
+    expect(blind.fit!.rmse).toBeGreaterThan(r.fit!.rmse * 1.5);
+  });
+});
+
 describe('a draining gravity burette (dV/dt = q0 (1 − V/Vh)) with checkpoints', () => {
   it('recovers Ve within 0.5 % with the drain model and checkpoints, where a constant-rate assumption is off by more than 0.5 %', () => {
     const q0 = 0.06;

@@ -308,12 +308,11 @@ export class ChargeBalanceModel {
     const FI = -2 * c * oh - Ct * c * sumS;
     const Gx = -h - 0.5 * Ct * Qx;
     const GI = 1 - 0.5 * Ct * c * QI;
+    // dpH/dp = −(dx/dp)/ln10 + A f'(I) dI/dp with [Fx FI; Gx GI]·[dx; dI] = −[Fp; Gp] (Cramer's rule):
+    // = (Fp·(GI/ln10 + A f' Gx) − Gp·(FI/ln10 + A f' Fx)) / det
     const det = Fx * GI - FI * Gx;
-    const dpH = (Fp: number, Gp: number) => {
-      const dx = (-Fp * GI + FI * Gp) / det;
-      const dI = (-Gp * Fx + Gx * Fp) / det;
-      return -dx / LN10 + this.A * fp * dI;
-    };
+    const wF = (GI / LN10 + this.A * fp * Gx) / det;
+    const wG = -(FI / LN10 + this.A * fp * Fx) / det;
     for (let k = 0; k < n; k++) {
       let sk = 0;
       let pk = 0;
@@ -323,9 +322,9 @@ export class ChargeBalanceModel {
       }
       let gq = 0;
       for (let j = 0; j <= n; j++) gq += j * (j - 1) * al[j] * ((j > k ? 1 : 0) - pk);
-      out[k] = dpH(Ct * LN10 * sk, 0.5 * Ct * LN10 * gq);
+      out[k] = wF * (Ct * LN10 * sk) + wG * (0.5 * Ct * LN10 * gq);
     }
-    out[n] = dpH(-nbar / Vt, (-0.5 * Q) / Vt);
+    out[n] = wF * (-nbar / Vt) + wG * ((-0.5 * Q) / Vt);
   }
 
   /** Explicit volume at a given pH (de Levie's form V = V0 (Ca n̄ − Δ)/(Cb − Cc n̄c + Δ)); negative or non-finite
