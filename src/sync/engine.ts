@@ -102,7 +102,7 @@ export class SyncEngine {
       pull: true,
       pullLimit: 1000,
       isOnline: () => true,
-      periodicMs: 30_000,
+      periodicMs: 15_000,
       baseBackoffMs: 2_000,
       maxBackoffMs: 60_000,
       now: Date.now,
@@ -191,7 +191,8 @@ export class SyncEngine {
       this.failures = 0;
       const c = await this.refreshCounts();
       this.set({ state: c.waiting ? 'waiting' : 'synced', lastSyncedAt: this.o.now(), message: blocked });
-      if (c.waiting) this.schedule(this.o.periodicMs);
+      // Periodic even when all is synced: new recordings go out, colleagues' changes come in.
+      this.schedule(this.o.periodicMs);
     } catch (err) {
       await this.refreshCounts().catch(() => undefined);
       const e = err instanceof TransportError ? err : new TransportError('server', err instanceof Error ? err.message : String(err));

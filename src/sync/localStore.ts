@@ -27,15 +27,26 @@ CREATE TABLE IF NOT EXISTS sync_conflicts (
 );
 `;
 
-export async function openSyncStore(local: LocalStore): Promise<SqliteSyncStore> {
+export interface SyncStoreOptions {
+  /**
+   * The lab a run recorded without one goes to (the bench records before anyone picks a lab): the active lab of
+   * whoever is signed in when it first syncs. Null: the run waits.
+   */
+  defaultLab?: () => string | null;
+}
+
+export async function openSyncStore(local: LocalStore, opts: SyncStoreOptions = {}): Promise<SqliteSyncStore> {
   await local.syncDb.execAsync(SCHEMA);
-  return new SqliteSyncStore(local);
+  return new SqliteSyncStore(local, opts);
 }
 
 const COLUMN: Record<string, string> = { notes: 'notes', sampleName: 'label', status: 'status' };
 
 export class SqliteSyncStore implements SyncStore {
-  constructor(private readonly local: LocalStore) {}
+  constructor(
+    private readonly local: LocalStore,
+    private readonly opts: SyncStoreOptions = {},
+  ) {}
 
   get deviceId(): string {
     return this.local.device.id;
@@ -47,7 +58,14 @@ export class SqliteSyncStore implements SyncStore {
 
   async runLab(runId: string): Promise<string | null> {
     const r = await this.local.syncDb.getFirstAsync<{ lab_id: string | null }>('SELECT lab_id FROM runs WHERE id = ?', runId);
-    return r?.lab_id ?? null;
+    if (!r) return null;
+    if (r.lab_id) return r.lab_id;
+    const lab = this.opts.defaultLab?.() ?? null;
+    if (!lab) return null;
+    // Kept on the run, so every later change of it (and any replay) goes to the same lab.
+    await this.local.syncWrite((db) => db.runAsync('UPDATE runs SET lab_id = ? WHERE id = ? AND lab_id IS NULL', lab, runId));
+    const again = await this.local.syncDb.getFirstAsync<{ lab_id: string | null }>('SELECT lab_id FROM runs WHERE id = ?', runId);
+    return again?.lab_id ?? null;
   }
 
   settle(list: Settlement[]): Promise<void> {

@@ -20,7 +20,7 @@ async function startFor(local: LocalStore) {
   if (owner === local) return;
   engine?.stop();
   owner = local;
-  store = await openSyncStore(local);
+  store = await openSyncStore(local, { defaultLab: () => useSession.getState().activeLabId });
   engine = new SyncEngine(
     store,
     httpTransport({
