@@ -61,8 +61,43 @@ export async function readingCount(page: Page): Promise<number> {
   return Number(await page.getByTestId('reading-count').innerText());
 }
 
+/** Waits (up to 15 s) until the bench shows `n` readings, i.e. every write has committed; returns what it shows. */
+export async function settledReadingCount(page: Page, n: number): Promise<number> {
+  await page
+    .waitForFunction((k) => document.querySelector('[data-testid="reading-count"]')?.textContent === String(k), n, { timeout: 15_000 })
+    .catch(() => undefined);
+  return readingCount(page);
+}
+
 /** mm:ss.s → seconds */
 export function clockSeconds(text: string): number {
   const [m, s] = text.trim().split(':');
   return Number(m) * 60 + Number(s);
+}
+
+/**
+ * Screenshots of a whole screen whose content scrolls inside the app (a full-page shot sees only the viewport):
+ * NAME.png at the top, then NAME-2.png… one viewport further each, up to `parts`.
+ */
+export async function shotScrolled(page: Page, name: string, shot: (p: Page, n: string) => Promise<string>, parts = 4) {
+  const scrollBy = async (i: number) =>
+    page.evaluate((k) => {
+      const els = [...document.querySelectorAll<HTMLElement>('*')].filter((e) => {
+        const o = getComputedStyle(e).overflowY;
+        return (o === 'auto' || o === 'scroll') && e.scrollHeight > e.clientHeight + 4;
+      });
+      const el = els.sort((a, b) => b.clientHeight - a.clientHeight)[0];
+      if (!el) return false;
+      el.scrollTop = k * el.clientHeight * 0.9;
+      return el.scrollTop + el.clientHeight < el.scrollHeight - 4 || k === 0;
+    }, i);
+  await scrollBy(0);
+  await shot(page, name);
+  for (let i = 1; i < parts; i++) {
+    const more = await scrollBy(i);
+    await page.waitForTimeout(100);
+    await shot(page, `${name}-${i + 1}`);
+    if (!more) break;
+  }
+  await scrollBy(0);
 }

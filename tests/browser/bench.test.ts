@@ -4,7 +4,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { simulateCurve } from '../../shared/engine';
-import { clockSeconds, createRun, readingCount, tap, typeOnKeypad, type SetupValues } from './bench-helpers';
+import { clockSeconds, createRun, readingCount, settledReadingCount, shotScrolled, tap, typeOnKeypad, type SetupValues } from './bench-helpers';
 import { closeBrowser, DESKTOP, openApp, PHONE, shot } from './harness';
 
 afterAll(closeBrowser);
@@ -46,11 +46,11 @@ for (const [label, viewport] of [
       expect(await page.getByTestId('plan-break-1').innerText()).toContain('25.00 mL, clock 08:20.0');
       await page.getByTestId('setup-warnings').waitFor();
       expect(await page.getByTestId('setup-warnings').innerText()).toMatch(/Drip rate typed by hand/);
-      await shot(page, `bench-setup-${label}`);
+      await shotScrolled(page, `bench-setup-${label}`, shot);
       await page.getByTestId('create-run').click();
       await page.waitForURL('**/bench/run/**');
       await page.getByTestId('start-run').waitFor();
-      await shot(page, `bench-ready-${label}`);
+      await shotScrolled(page, `bench-ready-${label}`, shot);
 
       await page.getByTestId('start-run').click();
       await page.getByTestId('tap-reading').waitFor();
@@ -75,12 +75,12 @@ for (const [label, viewport] of [
         if (i === 12) await shot(page, `bench-live-${label}`);
       }
       expect(checkpoints).toBe(2);
+      expect(await settledReadingCount(page, times.length)).toBe(times.length);
       await page.getByTestId('entry-idle').waitFor();
-      expect(await readingCount(page)).toBe(times.length);
       expect(times.length).toBeGreaterThanOrEqual(20);
       // The live estimate has caught up with the readings.
       await page.waitForFunction(() => document.querySelector('[data-testid="estimate-ve"]')?.textContent?.includes('mL'));
-      await shot(page, `bench-live-full-${label}`);
+      await shotScrolled(page, `bench-live-full-${label}`, shot);
 
       await page.getByTestId('finish-run').click();
       await page.getByTestId('confirm-finish').click();
@@ -91,7 +91,7 @@ for (const [label, viewport] of [
       const pka = parseFloat(await page.getByTestId('result-pka-1').innerText());
       expect(Math.abs(pka - 4.756)).toBeLessThan(0.15);
       await page.getByTestId('result-concentration').waitFor();
-      await shot(page, `bench-review-${label}`);
+      await shotScrolled(page, `bench-review-${label}`, shot);
 
       await page.getByTestId('run-notes').fill('Demo run; electrode rinsed between portions.');
       await page.getByTestId('save-notes').click();
@@ -99,7 +99,7 @@ for (const [label, viewport] of [
       await page.getByTestId('submit-run').click();
       await page.getByTestId('submit-state').waitFor();
       expect(await page.getByTestId('submit-state').innerText()).toMatch(/queued for the lab \(\d+ changes waiting to sync\)/);
-      await shot(page, `bench-submitted-${label}`);
+      await shotScrolled(page, `bench-submitted-${label}`, shot);
 
       // Everything came from the local database: a reload shows the same run, submitted.
       await page.reload();
@@ -132,6 +132,7 @@ describe('bench timing and storage', () => {
     expect(clockSeconds(await page.getByTestId('active-mark-time').innerText())).toBe(second);
     await typeOnKeypad(page, '3.05');
     await typeOnKeypad(page, '2.95');
+    expect(await settledReadingCount(page, 2)).toBe(2);
     const clockNow = clockSeconds(await page.getByTestId('run-clock').innerText());
     expect(clockNow - second).toBeGreaterThanOrEqual(5);
     // The table shows each reading at its mark's time, not at the time of typing.
@@ -210,7 +211,7 @@ describe('bench timing and storage', () => {
         await tap(page, 'tap-reading');
         await typeOnKeypad(page, pH);
       }
-      expect(await readingCount(page)).toBe(3);
+      expect(await settledReadingCount(page, 3)).toBe(3);
       await page.reload();
       await page.getByTestId('tap-reading').waitFor();
       expect(await readingCount(page)).toBe(3);
@@ -249,11 +250,11 @@ describe('bench timing and storage', () => {
       // The first tab keeps recording undisturbed.
       await tap(first, 'tap-reading');
       await typeOnKeypad(first, '3.10');
-      expect(await readingCount(first)).toBe(2);
+      expect(await settledReadingCount(first, 2)).toBe(2);
 
       await first.close();
       await second.getByTestId('tap-reading').waitFor({ timeout: 20_000 });
-      expect(await readingCount(second)).toBe(2);
+      expect(await settledReadingCount(second, 2)).toBe(2);
       expect(await second.getByTestId('reading-row-2').innerText()).toContain('3.10');
       await app.close();
     });

@@ -19,42 +19,60 @@ export interface EntryPanelProps {
 
 export const EntryPanel = memo(function EntryPanel({ pending, hasElectrode, onReading, onCheckpoint, onDiscard }: EntryPanelProps) {
   const [activeId, setActiveId] = useState<string | null>(null);
-  const [text, setText] = useState('');
+  // One draft per mark: typing for the next mark can begin while the last one is still being written, and a
+  // failed write keeps its text.
+  const [drafts, setDrafts] = useState<Record<string, string>>({});
+  const [saving, setSaving] = useState<ReadonlySet<string>>(new Set());
   const [readingMode, setReadingMode] = useState<'pH' | 'mV'>('pH');
   const [error, setError] = useState<string | null>(null);
-  const [saving, setSaving] = useState(false);
 
+  const open = pending.filter((m) => !saving.has(m.id));
   // The oldest pending mark is the one being typed unless the analyst chose another.
-  const active = pending.find((m) => m.id === activeId) ?? pending[0] ?? null;
+  const active = open.find((m) => m.id === activeId) ?? open[0] ?? null;
   const mode: EntryMode = active?.kind === 'checkpoint' ? 'mL' : readingMode;
+  const text = active ? (drafts[active.id] ?? '') : '';
+  const setText = useCallback((id: string, f: (t: string) => string) => setDrafts((d) => ({ ...d, [id]: f(d[id] ?? '') })), []);
   useEffect(() => {
     if (active && active.id !== activeId) {
       setActiveId(active.id);
-      setText('');
       setError(null);
     }
   }, [active, activeId]);
 
-  const onKey = useCallback((k: Key) => {
-    setError(null);
-    setText((t) => pressKey(t, k, mode));
-  }, [mode]);
+  const onKey = useCallback(
+    (k: Key) => {
+      if (!active) return;
+      setError(null);
+      setText(active.id, (t) => pressKey(t, k, mode));
+    },
+    [active, mode, setText],
+  );
 
   const confirm = useCallback(async () => {
-    if (!active || saving) return;
+    if (!active) return;
     const parsed = parseEntry(text, mode);
     if (!parsed.ok) {
       setError(parsed.error);
       return;
     }
-    setSaving(true);
-    const ok = active.kind === 'checkpoint' ? await onCheckpoint(active, parsed.value) : await onReading(active, mode as 'pH' | 'mV', parsed.value);
-    setSaving(false);
+    const m = active;
+    setSaving((s) => new Set(s).add(m.id));
+    setActiveId(null);
+    const ok = m.kind === 'checkpoint' ? await onCheckpoint(m, parsed.value) : await onReading(m, mode as 'pH' | 'mV', parsed.value);
+    setSaving((s) => {
+      const n = new Set(s);
+      n.delete(m.id);
+      return n;
+    });
     if (ok !== undefined) {
-      setText('');
-      setActiveId(null);
+      setDrafts((d) => {
+        const { [m.id]: _done, ...rest } = d;
+        return rest;
+      });
+    } else {
+      setActiveId(m.id); // back to the mark whose value did not save; its text is still there
     }
-  }, [active, saving, text, mode, onCheckpoint, onReading]);
+  }, [active, text, mode, onCheckpoint, onReading]);
 
   if (!active) {
     return (
@@ -67,7 +85,7 @@ export const EntryPanel = memo(function EntryPanel({ pending, hasElectrode, onRe
   return (
     <View style={styles.wrap} testID="entry-panel">
       <ScrollView horizontal contentContainerStyle={styles.chips} accessibilityLabel="Marks waiting for a value" testID="pending-marks">
-        {pending.map((m, i) => {
+        {open.map((m, i) => {
           const on = m.id === active.id;
           return (
             <Pressable
@@ -78,7 +96,6 @@ export const EntryPanel = memo(function EntryPanel({ pending, hasElectrode, onRe
               testID={`pending-${i}`}
               onPress={() => {
                 setActiveId(m.id);
-                setText('');
                 setError(null);
               }}
               style={[styles.chip, on && styles.chipOn, m.kind === 'checkpoint' && styles.chipCheckpoint]}
@@ -113,7 +130,7 @@ export const EntryPanel = memo(function EntryPanel({ pending, hasElectrode, onRe
             ]}
             onChange={(k) => {
               setReadingMode(k);
-              setText('');
+              setText(active.id, () => '');
               setError(null);
             }}
           />
@@ -137,7 +154,7 @@ export const EntryPanel = memo(function EntryPanel({ pending, hasElectrode, onRe
           {error}
         </Text>
       ) : null}
-      <Keypad onKey={onKey} onConfirm={confirm} confirmLabel={saving ? 'Saving…' : `Save ${rule.unit}`} confirmDisabled={saving} allowSign={rule.negative} />
+      <Keypad onKey={onKey} onConfirm={confirm} confirmLabel={`Save ${rule.unit}`} allowSign={rule.negative} />
       <Button kind="quiet" label="Discard this mark" testID="discard-mark" onPress={() => void onDiscard(active)} />
     </View>
   );

@@ -4,11 +4,17 @@ import type { ReactNode } from 'react';
 import { View } from 'react-native';
 import { useLocalDb, type LocalDbState } from '../../local/localDb';
 import { space } from '../../theme/tokens';
-import { Badge, Card, Text } from '../../ui';
+import { Badge, Card, Screen, Text } from '../../ui';
 
-export function LocalGate({ children }: { children: (state: Extract<LocalDbState, { status: 'ready' }>) => ReactNode }) {
+export function LocalGate({ children, screenTitle }: { children: (state: Extract<LocalDbState, { status: 'ready' }>) => ReactNode; screenTitle?: string }) {
   const local = useLocalDb();
   if (local.status === 'ready') return <>{children(local)}</>;
+  // On a screen of its own (a run, the setup) the message still sits in the usual frame.
+  if (screenTitle) return <Screen title={screenTitle} testID="screen-local-gate"><GateMessage local={local} /></Screen>;
+  return <GateMessage local={local} />;
+}
+
+function GateMessage({ local }: { local: Exclude<LocalDbState, { status: 'ready' }> }) {
   if (local.status === 'opening') {
     return (
       <Card title="Opening this device's records…" testID="local-opening">

@@ -61,7 +61,7 @@ function toSetup(f: Form, electrode: boolean): unknown {
 
 export function NewRunScreen() {
   return (
-    <LocalGate>
+    <LocalGate screenTitle="New run">
       {(local) => <NewRunForm create={(s) => local.store.createRun({ label: s.label, setup: s })} />}
     </LocalGate>
   );

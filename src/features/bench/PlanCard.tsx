@@ -37,7 +37,7 @@ export function PlanCard({ plan, compact }: { plan: PlanResult | null; compact?:
       <View style={{ gap: space.xs }}>
         {p.equivalence.map((e) => (
           <Text key={e.step} variant="label" numeric testID={`plan-break-${e.step}`}>
-            Break {p.equivalence.length > 1 ? e.step : ''} expected at {e.volumeMl.toFixed(2)} mL, clock {formatClock(e.timeS)}
+            Break{p.equivalence.length > 1 ? ` ${e.step}` : ''} expected at {e.volumeMl.toFixed(2)} mL, clock {formatClock(e.timeS)}
           </Text>
         ))}
         <Text numeric>Run until about {formatClock(p.suggestedTotalS)} (1.5 × Ve).</Text>

@@ -30,7 +30,7 @@ import { numberOrUndefined } from './setup';
 
 export function RunScreen({ runId }: { runId: string }) {
   return (
-    <LocalGate>
+    <LocalGate screenTitle="Run">
       {() => <RunLoaded runId={runId} />}
     </LocalGate>
   );
