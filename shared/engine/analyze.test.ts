@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import type { RunDocumentInput } from '../schemas/run-document';
+import { analysisResultSchema, type RunDocumentInput } from '../schemas/run-document';
 import { analyzeRun } from './analyze';
 import { EngineInputError } from './errors';
 import { syntheticRun, type SyntheticSpec } from './fixtures/synthetic';
@@ -15,6 +15,8 @@ const cases: { name: string; spec: SyntheticSpec }[] = [
   { name: 'phosphoric acid 0.05 M (pKa 2.148, 7.198, 12.375)', spec: { pKa: [2.148, 7.198, 12.375], concentrationM: 0.05, lengthStep: 2, endFraction: 1.3, molarMassGPerMol: 97.994 } },
   { name: 'stronger weak acid, phthalic pKa1 2.950, 0.05 M', spec: { pKa: [2.95], concentrationM: 0.05 } },
   { name: 'dilute acetic acid 0.001 M with 0.001 M NaOH', spec: { pKa: [4.756], concentrationM: 0.001, titrantM: 0.001, noisePH: 0.003 } },
+  // citric acid 3.128/4.761/6.396 (Bates & Pinching 1949, memory): overlapping steps give one break, at the third proton
+  { name: 'citric acid 0.03 M (one break for three protons)', spec: { pKa: [3.128, 4.761, 6.396], concentrationM: 0.03 } },
 ];
 
 describe('analyzeRun recovers the inputs of curves simulated from handbook constants (seeded noise 0.005 pH, uneven taps)', () => {
@@ -24,6 +26,8 @@ describe('analyzeRun recovers the inputs of curves simulated from handbook const
         const { doc, trueVeMl } = syntheticRun({ ...c.spec, seed });
         const r = run(doc);
         expect(r.equivalencePoints.length).toBeGreaterThan(0);
+        // the answer is itself valid against the published result schema (finite numbers throughout)
+        expect(analysisResultSchema.safeParse(r).success).toBe(true);
         for (const e of r.equivalencePoints) {
           expect(Math.abs(e.volumeMl / trueVeMl[e.step - 1] - 1)).toBeLessThan(0.003);
           expect(e.uMl).toBeGreaterThan(0);
@@ -131,6 +135,7 @@ describe('runs that do not bracket a break', () => {
     const r = run({ ...doc, readings: doc.readings.filter((x) => x.timeS < tStop) });
     expect(r.equivalencePoints).toEqual([]);
     expect(r.warnings.join(' ')).toMatch(/stopped before the first equivalence point.*continue past pH ~9/);
+    expect(analysisResultSchema.safeParse(r).success).toBe(true);
   });
   it('a run stopped inside the break says so', () => {
     const { doc, trueVeMl } = syntheticRun({ pKa: [4.756], concentrationM: 0.1, seed: 2, readings: 300 });
