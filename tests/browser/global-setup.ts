@@ -45,7 +45,8 @@ export async function setup(project: TestProject) {
     stdio: ['ignore', 'inherit', 'inherit'],
     detached: true,
   });
-  await waitForHealth(baseURL, 90_000);
+  // A fresh data directory, migrations, the demo seed (hashes, analysed demo runs): slow on a loaded 2-core machine.
+  await waitForHealth(baseURL, 240_000);
   project.provide('baseURL', baseURL);
   project.provide('dataDir', dataDir);
 }
