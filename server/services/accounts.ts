@@ -67,6 +67,16 @@ export function meFromCaller(caller: Caller): Me {
   };
 }
 
+/**
+ * A transaction that ends by signing an access token. The signing key is loaded first: without JWT_SECRET it is read
+ * (or created) in the database, and on PGlite's single connection doing that inside the open transaction would wait
+ * for the transaction forever.
+ */
+async function sessionTransaction<T>(app: ServerContext, work: (tx: Executor) => Promise<T>): Promise<T> {
+  await app.signer();
+  return app.database.db.transaction(work);
+}
+
 /** Opens a session (a refresh-token family) inside the caller's transaction and signs its first access token. */
 async function openSession(
   app: ServerContext,
@@ -115,7 +125,7 @@ export async function login(app: ServerContext, body: LoginBody, meta: { ip: str
   }
   // A success clears the account's count; the address count only decays, so one good account cannot reset it.
   await app.limiter.succeed([keys[0]]);
-  return app.database.db.transaction((tx) => openSession(app, tx, user, meta.userAgent));
+  return sessionTransaction(app, (tx) => openSession(app, tx, user, meta.userAgent));
 }
 
 /** Rotates the refresh token. A token presented a second time means it was copied: the whole family is revoked. */
@@ -131,7 +141,7 @@ export async function refresh(app: ServerContext, token: string | undefined): Pr
   if (!user || user.disabledAt) throw invalidRefresh();
   const issued = row.usedAt
     ? null
-    : await db.transaction(async (tx) => {
+    : await sessionTransaction(app, async (tx) => {
         if (!(await sessionsRepo.useRefreshToken(tx, row.id, now))) return null;
         await sessionsRepo.touchSession(tx, session.id, now);
         return issueTokens(app, tx, session, user);
@@ -195,7 +205,7 @@ export async function resetPassword(
   }
   assertAcceptablePassword(body.password, user.email);
   const passwordHash = await hashPassword(body.password);
-  const issued = await db.transaction(async (tx) => {
+  const issued = await sessionTransaction(app, async (tx) => {
     if (!(await sessionsRepo.consumePasswordReset(tx, reset.id, now))) return null;
     await usersRepo.setPassword(tx, user.id, passwordHash);
     // Whoever knew the old password is signed out everywhere.
@@ -260,7 +270,7 @@ export async function acceptInvitation(
     passwordHash = await hashPassword(body.password);
   }
   const now = app.now();
-  const issued = await db.transaction(async (tx) => {
+  const issued = await sessionTransaction(app, async (tx) => {
     let user = existing;
     if (!user) user = await usersRepo.insert(tx, { email: inv.email, displayName: displayName!, passwordHash: passwordHash! });
     else if (passwordHash) await usersRepo.setPassword(tx, user.id, passwordHash);
