@@ -1,7 +1,8 @@
 import { and, count, eq } from 'drizzle-orm';
 import Papa from 'papaparse';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditLog, outbox, readings, runs } from '../../db/schema';
+import { auditLog, outbox, readings, runs, syncChanges } from '../../db/schema';
+import { v7 } from 'uuid';
 import { authFixture, TEST_PASSWORD, type AuthFixture } from '../auth/test-fixture';
 import { demoRun, insertDemoRun, DEMO_SAMPLES } from '../demo/runs';
 import { startFakeS3 } from '../storage/fake-s3-server';
@@ -221,6 +222,43 @@ describe('review: submit, return, approve with the password', () => {
   });
 });
 
+describe('sync hand-off', () => {
+  const push = (who: 'manager' | 'analyst', changes: unknown[]) =>
+    fx.api().post('/api/sync/push').set('authorization', as(who)).send({ deviceId: v7(), sentAt: Date.now(), changes });
+
+  it('refuses changes to an approved (locked) run with a reason; the review status goes to the change log', async () => {
+    const runId = runIdsA[9]; // submitted, by the manager
+    const ok = await fx.api().post(`/api/runs/${runId}/approve`).set('authorization', as('manager')).send({ password: TEST_PASSWORD });
+    expect(ok.status).toBe(200);
+    const logged = await fx.database.db.select().from(syncChanges).where(and(eq(syncChanges.recordId, runId), eq(syncChanges.entity, 'run')));
+    expect(logged.length).toBeGreaterThanOrEqual(1);
+    const before = (await fx.database.db.select({ n: count() }).from(readings).where(eq(readings.runId, runId)))[0].n;
+    const res = await push('manager', [
+      { id: v7(), kind: 'reading', seq: 1, recordedAt: Date.now(), payload: { runId, timeS: 9999, pH: 7 } },
+      { id: v7(), kind: 'run_meta_edit', seq: 2, recordedAt: Date.now(), payload: { runId, field: 'notes', value: 'changed after approval', baseVersion: 1 } },
+    ]);
+    expect(res.status).toBe(200);
+    for (const r of res.body.results) {
+      expect(r.outcome).toBe('rejected');
+      expect(r.reason).toMatch(/approved and locked/);
+    }
+    expect((await fx.database.db.select({ n: count() }).from(readings).where(eq(readings.runId, runId)))[0].n).toBe(before);
+    expect((await fx.database.db.select().from(runs).where(eq(runs.id, runId)))[0].notes).not.toBe('changed after approval');
+  });
+
+  it('a submission through sync e-mails the managers like the API submission', async () => {
+    const runId = runIdsA[2]; // finished, by the analyst
+    const sample = (await fx.database.db.select().from(runs).where(eq(runs.id, runId)))[0].sampleName;
+    const subject = `Run submitted for review: ${sample}`;
+    const mailsBefore = (await fx.database.db.select().from(outbox).where(and(eq(outbox.toAddress, fx.people.manager.email), eq(outbox.subject, subject)))).length;
+    const res = await push('analyst', [{ id: v7(), kind: 'submission', seq: 1, recordedAt: Date.now(), payload: { runId, note: 'From the phone.' } }]);
+    expect(res.body.results[0].outcome).toBe('accepted');
+    const mails = await fx.database.db.select().from(outbox).where(and(eq(outbox.toAddress, fx.people.manager.email), eq(outbox.subject, subject)));
+    expect(mails.length).toBe(mailsBefore + 1);
+    expect(mails.at(-1)!.textBody).toMatch(/From the phone\./);
+  });
+});
+
 describe('exports', () => {
   it('readings CSV parses back: numbers as numbers, the same values', async () => {
     const runId = runIdsA[3];
@@ -306,6 +344,10 @@ describe('import', () => {
     const d = await fx.api().get(`/api/runs/${ok.body.runId}`).set('authorization', as('viewer'));
     expect(d.body.run).toMatchObject({ sampleName: 'Imported benzoic acid', status: 'finished', titrantLot: 'NaOH-IMP-1', readingCount: 30 });
     expect(d.body.readings[3]).toMatchObject({ timeS: 30, pH: 3.3 });
+    // Phones pull imported runs: the run and each reading are in sync's change log.
+    const logged = await fx.database.db.select().from(syncChanges).where(eq(syncChanges.runId, ok.body.runId));
+    expect(logged.filter((c) => c.entity === 'run').length).toBe(1);
+    expect(logged.filter((c) => c.entity === 'reading').length).toBe(30);
   });
 
   it('maps a volume column through the drip rate and reads m:ss times', async () => {

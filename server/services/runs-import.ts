@@ -8,6 +8,7 @@ import type { ServerContext } from '../auth/context';
 import { HttpError } from '../http/errors';
 import type { Caller } from '../http/routes';
 import { audit } from './audit';
+import { logRunChange } from './runs-sync-log';
 
 /**
  * CSV import: a file logged by a meter or typed elsewhere becomes a run like any other. Parsed with papaparse;
@@ -152,13 +153,12 @@ export async function importRun(app: ServerContext, caller: Caller, labId: strin
       createdAt: now,
       updatedAt: now,
     });
+    const rows = conv.rows.map((r) => ({ id: randomUUID(), runId, labId, kind: 'reading', timeS: r.timeS, pH: r.pH, mV: r.mV, receivedAt: now }));
     // One multi-row insert per 1,000 rows keeps statements small.
-    for (let i = 0; i < conv.rows.length; i += 1000) {
-      await tx.insert(readings).values(
-        conv.rows.slice(i, i + 1000).map((r) => ({ id: randomUUID(), runId, labId, kind: 'reading', timeS: r.timeS, pH: r.pH, mV: r.mV, receivedAt: now })),
-      );
-    }
-    await tx.insert(checkpoints).values({ id: randomUUID(), runId, labId, timeS: 0, buretteMl: 0, receivedAt: now });
+    for (let i = 0; i < rows.length; i += 1000) await tx.insert(readings).values(rows.slice(i, i + 1000));
+    const checkpointId = randomUUID();
+    await tx.insert(checkpoints).values({ id: checkpointId, runId, labId, timeS: 0, buretteMl: 0, receivedAt: now });
+    await logRunChange(tx, { labId, runId, readingIds: rows.map((r) => r.id), checkpointIds: [checkpointId] });
     await audit(tx, {
       labId,
       actorId: caller.userId,

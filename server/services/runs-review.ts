@@ -10,6 +10,7 @@ import * as outboxRepo from '../repos/outbox';
 import * as repo from '../repos/runs-desk';
 import * as usersRepo from '../repos/users';
 import { audit } from './audit';
+import { logRunChange } from './runs-sync-log';
 
 /**
  * Review of a run: the analyst submits, a manager returns it with a comment or approves it. Approval is a signature:
@@ -34,13 +35,13 @@ async function revisionOf(tx: Executor, runId: string, labId: string) {
   return (await repo.currentRevision(tx, runId))!.rev;
 }
 
-function link(app: ServerContext, runId: string) {
+function link(app: Pick<ServerContext, 'publicUrl'>, runId: string) {
   return `${app.publicUrl}/logbook/${runId}`;
 }
 
 /** Writes the submission mail to every manager of the lab, in the caller's transaction. Sync can call this too. */
 export async function mailManagersOnSubmission(
-  app: ServerContext,
+  app: Pick<ServerContext, 'publicUrl'>,
   tx: Executor,
   p: { labId: string; runId: string; sampleName: string; analystName: string; note: string },
 ) {
@@ -77,6 +78,7 @@ export async function submit(app: ServerContext, caller: Caller, labId: string, 
     if (['running', 'paused'].includes(run.status)) throw wrongState(run.status, 'finished');
     const at = app.now();
     const updated = await repo.setStatus(tx, runId, 'submitted', at);
+    await logRunChange(tx, { labId, runId });
     await repo.insertReviewEvent(tx, { runId, labId, revision: rev.revision, kind: 'submit', actorId: caller.userId, comment: note || null, at });
     await audit(tx, { labId, actorId: caller.userId, action: 'run.submit', entity: 'run', entityId: runId, before: { status: run.status }, after: { status: 'submitted', note, revision: rev.revision } });
     await mailManagersOnSubmission(app, tx, { labId, runId, sampleName: run.sampleName, analystName: caller.displayName, note });
@@ -101,6 +103,7 @@ export async function returnRun(app: ServerContext, caller: Caller, labId: strin
     if (run.status !== 'submitted') throw wrongState(run.status, 'submitted');
     const at = app.now();
     const updated = await repo.setStatus(tx, runId, 'returned', at);
+    await logRunChange(tx, { labId, runId });
     await repo.insertReviewEvent(tx, { runId, labId, revision: rev.revision, kind: 'return', actorId: caller.userId, comment, at });
     await repo.insertComment(tx, { runId, labId, authorId: caller.userId, body: `Returned for changes: ${comment}`, createdAt: at });
     await audit(tx, { labId, actorId: caller.userId, action: 'run.return', entity: 'run', entityId: runId, before: { status: run.status }, after: { status: 'returned', comment, revision: rev.revision } });
@@ -143,6 +146,7 @@ export async function approve(app: ServerContext, caller: Caller, labId: string,
     const readingsHash = createHash('sha256').update(JSON.stringify(rs.map((r) => [r.id, r.kind, r.timeS, r.pH, r.mV, r.replacesId]))).digest('hex');
     const snapshot = { sampleName: run.sampleName, setup: run.setup, result: run.result, notes: run.notes, readingCount: rs.length, readingsHash };
     const updated = await repo.setStatus(tx, runId, 'approved', at);
+    await logRunChange(tx, { labId, runId });
     await repo.lockRevision(tx, runId, rev.revision, { lockedAt: at, approvedBy: caller.userId, approvalMeaning: APPROVAL_MEANING, snapshot });
     await repo.insertReviewEvent(tx, { runId, labId, revision: rev.revision, kind: 'approve', actorId: caller.userId, comment: body.comment || null, meaning: APPROVAL_MEANING, at });
     await audit(tx, {
@@ -177,6 +181,7 @@ export async function reopen(app: ServerContext, caller: Caller, labId: string, 
     const next = rev.revision + 1;
     await repo.insertRevision(tx, { runId, labId, revision: next, openedBy: caller.userId, reason, openedAt: at });
     const updated = await repo.setStatus(tx, runId, 'finished', at);
+    await logRunChange(tx, { labId, runId });
     await repo.insertReviewEvent(tx, { runId, labId, revision: next, kind: 'reopen', actorId: caller.userId, comment: reason, at });
     await audit(tx, { labId, actorId: caller.userId, action: 'run.reopen', entity: 'run', entityId: runId, before: { status: run.status, revision: rev.revision }, after: { status: 'finished', revision: next, reason } });
     return { status: updated.status, version: updated.version, revision: next };

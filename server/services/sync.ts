@@ -17,6 +17,8 @@ import type { Role } from '../../shared/schemas/roles';
 import type { Database } from '../../db/client';
 import type { Executor } from '../repos/executor';
 import * as repo from '../repos/sync';
+import { lockedRunIds, runWithAnalyst } from '../repos/runs-desk';
+import { mailManagersOnSubmission } from './runs-review';
 
 /**
  * Sync: push (device outbox → server) and pull (lab changes → device).
@@ -44,6 +46,9 @@ export interface SyncCaller {
 export interface SyncDeps {
   database: Database;
   now: () => Date;
+  /** For the submission e-mail to managers (the API's ServerContext has both); without them no mail is written. */
+  publicUrl?: string;
+  mailNudge?: () => void;
 }
 
 /** NOTIFY channel of the live hub; payload "runId:seq". */
@@ -157,6 +162,9 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       else if (d.runId) referenced.add(d.runId);
     }
     for (const r of await repo.runsByIds(tx, [...referenced])) runInfo.set(r.id, r);
+    // An approved revision is a signed record: nothing is added to or changed in it until a new revision is opened.
+    const locked = await lockedRunIds(tx, [...runInfo.keys()]);
+    let mailed = false;
 
     const mayWrite = (labId: string, analystId: string): string | null => {
       const role = caller.roleIn(labId);
@@ -175,6 +183,10 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       const denied = mayWrite(run.labId, run.analystId);
       if (denied) {
         answer(it, 'rejected', 403, denied);
+        return null;
+      }
+      if (locked.has(runId)) {
+        answer(it, 'rejected', 409, 'This run is approved and locked; a manager must open a new revision before it can be changed.');
         return null;
       }
       return { id: runId, ...run };
@@ -374,6 +386,17 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
         payloadHash: it.hash!,
       });
       await repo.setRunField(t, d.runId, 'status', 'submitted', receivedAt);
+      if (deps.publicUrl) {
+        const named = await runWithAnalyst(t, d.runId);
+        await mailManagersOnSubmission({ publicUrl: deps.publicUrl }, t, {
+          labId: run.labId,
+          runId: d.runId,
+          sampleName: named.run.sampleName,
+          analystName: named.analystName,
+          note: d.note ?? '',
+        });
+        mailed = true;
+      }
       answer(it, 'accepted', 201);
       log.push({ labId: run.labId, entity: 'run', recordId: d.runId, runId: d.runId });
       touchedRuns.add(d.runId);
@@ -390,7 +413,10 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       lastSyncAt: receivedAt,
       ...(lastLab ? { labId: lastLab } : {}),
     });
-    return { results, lastSeq, serverTime: receivedAt.toISOString(), clockOffsetMs, clockFlagged };
+    return { results, lastSeq, serverTime: receivedAt.toISOString(), clockOffsetMs, clockFlagged, mailed };
+  }).then(({ mailed, ...response }) => {
+    if (mailed) deps.mailNudge?.();
+    return response;
   });
 }
 
