@@ -10,7 +10,12 @@ async function signInAsManager(page: Page) {
   await page.getByTestId('sign-in-email').fill('manager@demo.halfmark.test');
   await page.getByTestId('sign-in-password').fill('demo-manager-2026');
   await page.getByTestId('sign-in-submit').click();
-  await page.waitForURL('**/bench');
+  try {
+    await page.waitForURL((url) => !url.pathname.startsWith('/sign-in'), { timeout: 60_000 });
+  } catch (e) {
+    await shot(page, 'calibrate-sign-in-failed');
+    throw e;
+  }
   await page.getByTestId('nav-calibrate').click();
   await page.waitForURL('**/calibrate');
   await page.getByText('Demo burette 50 mL A-07').first().waitFor();
@@ -54,7 +59,9 @@ describe('Calibrate, as a manager', () => {
     await page.getByTestId('std-urep').fill('0.0005');
     const c = await page.getByTestId('std-concentration').textContent();
     // The engine's CIAAW molar mass (204.2223) differs from QUAM's 204.2212 in the 6th digit: still 0.10214.
-    expect(c).toContain('0.10214 ± 0.00010 mol/L');
+    const [cM, uM] = c!.split(' mol/L')[0].split(' ± ').map(Number);
+    expect(cM.toFixed(5)).toBe('0.10214');
+    expect(uM.toFixed(5)).toBe('0.00010');
     await page.getByTestId('co2-note').waitFor();
     await shot(page, 'calibrate-standardise-phone');
     await page.getByTestId('std-save').click();
