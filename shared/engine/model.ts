@@ -125,28 +125,42 @@ export class ChargeBalanceModel {
     const Ct = amountMmol / Vt;
     const Cct = (this.Cc * V) / Vt;
     this.Ct = Ct;
+    this.Cct = Cct;
     if (this.activity === 'none') {
       this.solve(Na, Ct, Cct);
       this.ionicStrength = this.currentI(Na, Ct, Cct);
       this.logGamma1 = 0;
     } else {
-      // Newton on ln h with the ionic strength updated at every step (started from the last point's): I depends
-      // weakly on h, so both settle together in a few steps. If that does not settle, alternate full solves.
+      // Newton on the coupled pair (ln h, I), started from this point's or the last point's solution; both
+      // converge quadratically. If that does not settle, alternate full solves of h with updates of I.
       let I = this.ionicStrength > 0 ? this.ionicStrength : Na + 0.5 * Ct;
       let x = this.lastX;
       let ok = false;
       for (let it = 0; it < 40; it++) {
         this.setConditional(I);
         const F = this.evalF(x, Na, Ct, Cct);
-        let dx = -F / this.dFdlnh;
+        const G = I - this.currentI(Na, Ct, Cct);
+        this.coupledPartials(I);
+        const Fx = this.dFdlnh;
+        const det = Fx * this.GI - this.FI * this.Gx;
+        let dx = (-F * this.GI + this.FI * G) / det;
+        let dI = (-G * Fx + this.Gx * F) / det;
+        if (!Number.isFinite(dx) || !Number.isFinite(dI)) { dx = -F / Fx; dI = -G; }
         if (dx > 3) dx = 3;
         else if (dx < -3) dx = -3;
+        while (I + dI <= 0) dI *= 0.5;
         x += dx;
-        const In = this.currentI(Na, Ct, Cct);
-        const settled = Math.abs(dx) < 1e-10 && Math.abs(In - I) <= 1e-10 * In + 1e-18;
-        I = In;
-        if (settled) { ok = true; break; }
+        I += dI;
+        if (Math.abs(dx) < 1e-11 && Math.abs(dI) <= 1e-11 * I + 1e-18) { ok = true; break; }
       }
+      if (ok) {
+        // accept only a genuine solution of both equations
+        this.setConditional(I);
+        const F = this.evalF(x, Na, Ct, Cct);
+        const Ic = this.currentI(Na, Ct, Cct);
+        ok = I > 0 && Math.abs(Ic - I) <= 1e-9 * I && Math.abs(F) <= 1e-9 * (this.h + Na + this.Kwc / this.h);
+      }
+      if (!ok) I = Na + 0.5 * Ct + 1e-7;
       if (ok) {
         this.setConditional(I);
         this.evalF(x, Na, Ct, Cct);
@@ -264,6 +278,54 @@ export class ChargeBalanceModel {
     return h + Na - oh - Ct * nbar - Cct * cnbar;
   }
 
+  // partial derivatives of the coupled system F(x, I) = 0, G(x, I) = I − Φ(x, I) = 0 at the last evaluated point
+  private Cct = 0;
+  private FI = 0;
+  private Gx = 0;
+  private GI = 1;
+  private fp = 0;
+
+  /** ∂F/∂I, ∂G/∂x, ∂G/∂I (x = ln h) from the current α, with g = 10^(A f(I)) and Kc_j ∝ g^(2j+2), Kw,c ∝ g². */
+  private coupledPartials(I: number): void {
+    const n = this.n;
+    const al = this.alpha;
+    const nbar = this.nbar;
+    const Ct = this.Ct;
+    const h = this.h;
+    const sI = Math.sqrt(I);
+    const fp = 1 / (2 * sI * (1 + sI) * (1 + sI)) - 0.3; // f'(I), f = √I/(1+√I) − 0.3 I
+    const c = LN10 * this.A * fp; // d ln g / dI
+    const oh = this.Kwc / h;
+    let M = 0; // Σ j(j+1) α_j
+    let Qx = 0; // Σ j(j−1) α_j (n̄ − j)
+    for (let j = 0; j <= n; j++) {
+      M += j * (j + 1) * al[j];
+      Qx += j * (j - 1) * al[j] * (nbar - j);
+    }
+    let sumS = 0;
+    for (let k = 0; k < n; k++) {
+      let sk = 0;
+      for (let j = k + 1; j <= n; j++) sk += al[j] * (j - nbar);
+      sumS += (2 * k + 2) * sk;
+    }
+    let QI = 0;
+    for (let j = 0; j <= n; j++) QI += j * (j - 1) * al[j] * (j * (j + 1) - M);
+    this.FI = -2 * c * oh - Ct * c * sumS;
+    this.Gx = -h - 0.5 * Ct * Qx;
+    this.GI = 1 - 0.5 * Ct * c * QI;
+    if (this.Cct > 0) {
+      // carbonate: ln t1 and ln t2 grow with I by 2c and 6c (K1c ∝ g², K1c·K2c ∝ g⁶)
+      const a1 = this.ccAlpha1;
+      const a2 = this.ccAlpha2;
+      const nc = a1 + 2 * a2;
+      const Lm = 2 * a1 + 6 * a2;
+      this.FI -= this.Cct * c * (2 * a1 + 12 * a2 - nc * Lm);
+      this.Gx -= this.Cct * a2 * (nc - 2);
+      this.GI -= this.Cct * a2 * c * (6 - Lm);
+    }
+    this.fp = fp;
+  }
+
   /** Exact ∂pH/∂pKa_k (out[k], k < n) and ∂pH/∂amount (out[n], per mmol) at the last solved point, volume V.
    * Implicit differentiation of the charge balance F(ln h, I) = 0 and, with Davies, of the ionic-strength equation
    * I = h + Na + ½ Ct Σ j(j−1) α_j as well (carbonate's small share of the I-dependence is left out). */
@@ -284,30 +346,10 @@ export class ChargeBalanceModel {
       out[n] = -nbar / Vt / (LN10 * Fx);
       return;
     }
-    const I = this.ionicStrength;
-    const sI = Math.sqrt(I);
-    const fp = 1 / (2 * sI * (1 + sI) * (1 + sI)) - 0.3; // f'(I), f = √I/(1+√I) − 0.3 I
-    const c = LN10 * this.A * fp; // d ln g / dI
-    const oh = this.Kwc / h;
+    this.coupledPartials(this.ionicStrength);
+    const { FI, Gx, GI, fp } = this;
     let Q = 0; // Σ j(j−1) α_j
-    let M = 0; // Σ j(j+1) α_j
-    let Qx = 0; // Σ j(j−1) α_j (n̄ − j)
-    for (let j = 0; j <= n; j++) {
-      Q += j * (j - 1) * al[j];
-      M += j * (j + 1) * al[j];
-      Qx += j * (j - 1) * al[j] * (nbar - j);
-    }
-    let sumS = 0;
-    for (let k = 0; k < n; k++) {
-      let sk = 0;
-      for (let j = k + 1; j <= n; j++) sk += al[j] * (j - nbar);
-      sumS += (2 * k + 2) * sk;
-    }
-    let QI = 0;
-    for (let j = 0; j <= n; j++) QI += j * (j - 1) * al[j] * (j * (j + 1) - M);
-    const FI = -2 * c * oh - Ct * c * sumS;
-    const Gx = -h - 0.5 * Ct * Qx;
-    const GI = 1 - 0.5 * Ct * c * QI;
+    for (let j = 2; j <= n; j++) Q += j * (j - 1) * al[j];
     // dpH/dp = −(dx/dp)/ln10 + A f'(I) dI/dp with [Fx FI; Gx GI]·[dx; dI] = −[Fp; Gp] (Cramer's rule):
     // = (Fp·(GI/ln10 + A f' Gx) − Gp·(FI/ln10 + A f' Fx)) / det
     const det = Fx * GI - FI * Gx;
