@@ -87,23 +87,19 @@ async function main() {
     const cdp = await context.newCDPSession(page);
     await cdp.send('Emulation.setCPUThrottlingRate', { rate: 4 });
 
-    await page.evaluate(() => {
-      const w = window as any;
-      window.addEventListener('pointerdown', (e) => (w.__down = e.timeStamp), { capture: true });
-      // Resolves with ms from the last pointerdown to the frame after `check()` first holds.
-      w.__until = (check: () => boolean) =>
-        new Promise<number>((resolve) => {
-          const done = () => requestAnimationFrame(() => resolve(performance.now() - w.__down));
+    // Plain script text: tsx would wrap named functions in a helper that does not exist inside the page.
+    await page.evaluate(`
+      window.addEventListener('pointerdown', function (e) { window.__down = e.timeStamp; }, { capture: true });
+      // Resolves with ms from the last pointerdown to the frame after check() first holds.
+      window.__until = function (check) {
+        return new Promise(function (resolve) {
+          function done() { requestAnimationFrame(function () { resolve(performance.now() - window.__down); }); }
           if (check()) return done();
-          const mo = new MutationObserver(() => {
-            if (check()) {
-              mo.disconnect();
-              done();
-            }
-          });
+          var mo = new MutationObserver(function () { if (check()) { mo.disconnect(); done(); } });
           mo.observe(document.body, { subtree: true, childList: true, characterData: true });
         });
-    });
+      };
+    `);
 
     const markMs: number[] = [];
     const readingMs: number[] = [];

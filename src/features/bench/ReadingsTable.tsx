@@ -23,11 +23,15 @@ type Row = { kind: 'reading'; eff: Effective<ReadingRow>; n: number } | { kind: 
 export const ReadingsTable = memo(function ReadingsTable({ readings, checkpoints, volumeAt, limit = 25, onCorrectReading, onCorrectCheckpoint }: ReadingsTableProps) {
   const [showAll, setShowAll] = useState(false);
   const [editing, setEditing] = useState<string | null>(null);
+  // Both lists come sorted by time; only the newest `limit` of each can be on screen, so only those are merged
+  // (a run of thousands of readings does not sort them all at every tap).
+  const total = readings.length + checkpoints.length;
+  const take = showAll ? total : limit;
   const rows: Row[] = [
-    ...readings.map((eff, i) => ({ kind: 'reading' as const, eff, n: i + 1 })),
-    ...checkpoints.map((eff, i) => ({ kind: 'checkpoint' as const, eff, n: i + 1 })),
+    ...readings.slice(Math.max(0, readings.length - take)).map((eff, i, a) => ({ kind: 'reading' as const, eff, n: readings.length - a.length + i + 1 })),
+    ...checkpoints.slice(Math.max(0, checkpoints.length - take)).map((eff, i, a) => ({ kind: 'checkpoint' as const, eff, n: checkpoints.length - a.length + i + 1 })),
   ].sort((a, b) => b.eff.current.timeS - a.eff.current.timeS);
-  const shown = showAll ? rows : rows.slice(0, limit);
+  const shown = rows.slice(0, take);
   return (
     <View style={styles.table} testID="readings-table" accessibilityRole="list" aria-label="Readings">
       <View style={[styles.row, styles.headRow]}>
@@ -77,8 +81,8 @@ export const ReadingsTable = memo(function ReadingsTable({ readings, checkpoints
           </View>
         );
       })}
-      {rows.length > shown.length ? <Button kind="quiet" label={`Show all ${rows.length} rows`} onPress={() => setShowAll(true)} testID="show-all-rows" /> : null}
-      {rows.length === 0 ? (
+      {total > shown.length ? <Button kind="quiet" label={`Show all ${total} rows`} onPress={() => setShowAll(true)} testID="show-all-rows" /> : null}
+      {total === 0 ? (
         <Text tone="muted" style={styles.emptyText}>
           No readings yet.
         </Text>

@@ -1,7 +1,7 @@
 // One run on the bench: before the start (plan, start button), while the clock runs (tap, type, live curve), and
 // after the finish (results, notes, submit for review).
 import { router } from 'expo-router';
-import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import { useCallback, useDeferredValue, useEffect, useMemo, useRef, useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import type { CheckpointRow, MarkRow, ReadingRow } from '../../local/types';
 import { useLayoutSize } from '../../theme/layout';
@@ -66,7 +66,11 @@ function RunBench({ run }: { run: BenchRun }) {
   const setup = run.setup?.ok ? run.setup.setup : null!;
   const live = run.status === 'running' || run.status === 'paused';
   const wake = useScreenAwake(live);
-  const analysis = useLiveAnalysis(run.built?.doc ?? null, run.status === 'running' || run.status === 'paused');
+  // The curve and the analysis follow a moment behind the taps: React renders them after the urgent update
+  // (the new mark or row), so a long run never delays what the finger just did.
+  const deferredReadings = useDeferredValue(run.readings);
+  const deferredDoc = useDeferredValue(run.built?.doc ?? null);
+  const analysis = useLiveAnalysis(deferredDoc, run.status === 'running' || run.status === 'paused');
   const [confirmFinish, setConfirmFinish] = useState(false);
   const [cueOn, setCueOn] = useState(false);
   const [gap, setGap] = useState(0);
@@ -76,9 +80,9 @@ function RunBench({ run }: { run: BenchRun }) {
     const map = run.deliveryMap;
     if (!map) return [];
     const out: { x: number; y: number }[] = [];
-    for (const { current: r } of run.readings) if (r.pH !== null) out.push({ x: Math.max(0, map.volumeAt(r.timeS)), y: r.pH });
+    for (const { current: r } of deferredReadings) if (r.pH !== null) out.push({ x: Math.max(0, map.volumeAt(r.timeS)), y: r.pH });
     return out;
-  }, [run.readings, run.deliveryMap]);
+  }, [deferredReadings, run.deliveryMap]);
   const predicted = useMemo(() => (run.plan?.ok && run.plan.plan.curve ? run.plan.plan.curve.map((p) => ({ x: p.volumeMl, y: p.pH })) : undefined), [run.plan]);
   const volumeAt = useCallback((t: number) => (run.deliveryMap ? Math.max(0, run.deliveryMap.volumeAt(t)) : null), [run.deliveryMap]);
 

@@ -23,6 +23,8 @@ export const runSetupSchema = z.object({
   titrant: z.object({
     source: z.enum(['manual', 'lab']),
     lotId: z.string().optional(),
+    /** The lot's standardisations whose concentration this is (chosen from the lab's calibrations). */
+    standardisationIds: z.array(z.string()).optional(),
     concentrationM: titrantShape.concentrationM,
     uConcentrationM: titrantShape.uConcentrationM,
     /** Date the lot was standardised (YYYY-MM-DD). */
