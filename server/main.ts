@@ -2,14 +2,29 @@ import type { Server } from 'node:http';
 import { openDatabase, type Database } from '../db/client';
 import { createApp } from './app';
 import { loadConfig } from './config';
-import { DEMO_LAB_NAME, DEMO_USERS, isEmpty, seedDemo } from './demo/seed';
+import { existsSync } from 'node:fs';
+import path from 'node:path';
+import { DEMO_LAB_NAME, DEMO_USERS, demoPasswordHashes, isEmpty, seedDemo } from './demo/seed';
 import { DataDirLockedError, lockDataDir } from './lock';
 import { startMail } from './mail';
 
 async function main() {
   const config = loadConfig();
+  // Where start-up time goes, printed once at listen.
+  const phases: string[] = [];
+  let mark = 0; // performance.now() counts from process start
+  const phase = (name: string) => {
+    const now = performance.now();
+    phases.push(`${name} ${((now - mark) / 1000).toFixed(1)} s`);
+    mark = now;
+  };
+  phase('modules');
   let release: (() => void) | undefined;
   let database: Database;
+  // A fresh PGlite folder will be seeded: hash the demo passwords (thread pool) while the database initialises.
+  const earlyHashes =
+    config.seedDemo && !config.databaseUrl && !existsSync(path.join(config.dataDir, 'PG_VERSION')) ? demoPasswordHashes() : undefined;
+  earlyHashes?.catch(() => undefined);
   if (config.databaseUrl) {
     database = await openDatabase({ kind: 'postgres', url: config.databaseUrl });
   } else {
@@ -17,12 +32,14 @@ async function main() {
     database = await openDatabase({ kind: 'pglite', dataDir: config.dataDir });
   }
 
+  phase('database');
   let demo = false;
   if (config.seedDemo && (await isEmpty(database))) {
-    await seedDemo(database);
+    await seedDemo(database, earlyHashes);
     demo = true;
     console.log(`Seeded "${DEMO_LAB_NAME}". Demo sign-in (invented accounts, for trying Halfmark only):`);
     for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(8)} ${u.email}  password: ${u.password}`);
+    phase('demo seed');
   }
 
   const log = (msg: string, err?: unknown) => console.error(`[halfmark] ${msg}`, err ?? '');
@@ -38,6 +55,8 @@ async function main() {
   });
   const server: Server = app.listen(config.port, config.host, () => {
     const where = config.databaseUrl ? 'PostgreSQL (DATABASE_URL)' : `PGlite in ${config.dataDir}`;
+    phase('mail and app');
+    console.log(`Start-up ${process.uptime().toFixed(1)} s since process start: ${phases.join(', ')}`);
     console.log(`Halfmark is serving on http://localhost:${(server.address() as { port: number }).port} (data: ${where})`);
   });
 

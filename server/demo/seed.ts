@@ -23,8 +23,11 @@ export async function isEmpty(database: Database): Promise<boolean> {
   return rows[0].n === 0;
 }
 
-export async function seedDemo(database: Database): Promise<{ labId: string }> {
-  const hashes = await Promise.all(DEMO_USERS.map((u) => hashPassword(u.password)));
+/** The demo accounts' password hashes: scrypt runs in libuv's thread pool, so start-up can begin them early. */
+export const demoPasswordHashes = () => Promise.all(DEMO_USERS.map((u) => hashPassword(u.password)));
+
+export async function seedDemo(database: Database, early?: Promise<string[]>): Promise<{ labId: string }> {
+  const hashes = await (early ?? demoPasswordHashes());
   return database.db.transaction(async (tx) => {
     const [lab] = await tx
       .insert(labs)
