@@ -26,13 +26,13 @@ describe('the team desk', () => {
       await page.goto('/logbook');
       await page.getByTestId(label === 'desktop' ? 'runs-table' : 'runs-cards').waitFor();
       const rows = page.locator('[data-testid^="run-row-"]');
-      await expect.poll(() => rows.count()).toBeGreaterThanOrEqual(6);
+      await expect.poll(() => rows.count(), { timeout: 30_000 }).toBeGreaterThanOrEqual(6);
       await shot(page, `desk-logbook-${label}`);
       await page.getByTestId('filter-status-submitted').click();
-      await expect.poll(() => rows.count()).toBe(2);
+      await expect.poll(() => rows.count(), { timeout: 30_000 }).toBe(2);
       await shot(page, `desk-logbook-filtered-${label}`);
       await page.getByTestId('filter-status-all').click();
-      await expect.poll(() => rows.count()).toBeGreaterThanOrEqual(6);
+      await expect.poll(() => rows.count(), { timeout: 30_000 }).toBeGreaterThanOrEqual(6);
       const ids = await rows.evaluateAll((els) => els.map((e) => e.getAttribute('data-testid')!.slice('run-row-'.length)));
       await page.getByTestId(`select-${ids[0]}`).click();
       await page.getByTestId(`select-${ids[1]}`).click();
@@ -51,13 +51,14 @@ describe('the team desk', () => {
   }
 
   it('a manager approves a submitted run after re-entering the password; a wrong password is refused', async () => {
-    const app = await openApp('/', { viewport: DESKTOP });
+    // The wrong password is answered 401 on purpose; the browser logs that response as a console error.
+    const app = await openApp('/', { viewport: DESKTOP, allowConsole: ['401'] });
     const { page } = app;
     await signIn(page, 'manager');
     await page.goto('/logbook');
     await page.getByTestId('filter-status-submitted').click();
     const rows = page.locator('[data-testid^="run-row-"]');
-    await expect.poll(() => rows.count()).toBeGreaterThanOrEqual(1);
+    await expect.poll(() => rows.count(), { timeout: 30_000 }).toBeGreaterThanOrEqual(1);
     const id = (await rows.first().getAttribute('data-testid'))!.slice('run-row-'.length);
     await page.goto(`/logbook/${id}`);
     await page.getByTestId('review-password').fill('not the password');
@@ -100,6 +101,29 @@ describe('the team desk', () => {
     expect(parsed.errors).toEqual([]);
     expect(parsed.data.length).toBeGreaterThan(20);
     expect(typeof parsed.data[0].pH).toBe('number');
+    await app.close();
+  });
+
+  it('an analyst attaches a photo to a run and downloads the same bytes back', async () => {
+    const app = await openApp('/', { viewport: DESKTOP });
+    const { page } = app;
+    await signIn(page, 'analyst');
+    await page.goto('/logbook');
+    const first = page.locator('[data-testid^="run-row-"]').first();
+    await first.waitFor();
+    const id = (await first.getAttribute('data-testid'))!.slice('run-row-'.length);
+    await page.goto(`/logbook/${id}`);
+    await page.getByTestId('attachments').waitFor({ timeout: 30_000 });
+    // A 1×1 PNG (valid signature and chunks, so the server's content check accepts it as image/png).
+    const png = Buffer.from('iVBORw0KGgoAAAANSUhEUgAAAAEAAAABCAYAAAAfFcSJAAAADUlEQVR42mNkYPhfDwAChwGA60e6kgAAAABJRU5ErkJggg==', 'base64');
+    const [chooser] = await Promise.all([page.waitForEvent('filechooser'), page.getByTestId('attach-file').click()]);
+    await chooser.setFiles({ name: 'balance-printout.png', mimeType: 'image/png', buffer: png });
+    const button = page.getByTestId('attachment-balance-printout.png');
+    await button.waitFor({ timeout: 30_000 });
+    await shot(page, 'desk-attachment-desktop');
+    const [download] = await Promise.all([page.waitForEvent('download'), button.click()]);
+    expect(readFileSync((await download.path())!).equals(png)).toBe(true);
+    expect(await page.getByTestId('attach-error').count()).toBe(0);
     await app.close();
   });
 });

@@ -7,7 +7,7 @@ import { Badge, Button, Card, Field, Screen, Text } from '../../ui';
 import { LineChart, type ChartSeries } from '../charts/LineChart';
 import { useApprove, useComment, useReopen, useReturn, useRunDetail, useSubmit } from './api';
 import { downloadFile, uploadFile } from './download';
-import { num, when, withU } from './format';
+import { methodLabel, num, when, withU } from './format';
 import { useQueryClient } from '@tanstack/react-query';
 import { deskKeys } from './api';
 
@@ -111,7 +111,7 @@ function Report({ d }: { d: RunDetail }) {
         {a ? (
           <View testID="results">
             {a.equivalencePoints.map((e) => (
-              <Text key={`ve${e.step}`} numeric>Equivalence volume{a.equivalencePoints.length > 1 ? ` ${e.step}` : ''}: {withU(e.volumeMl, e.uMl, 'mL')} ({e.method})</Text>
+              <Text key={`ve${e.step}`} numeric>Equivalence volume{a.equivalencePoints.length > 1 ? ` ${e.step}` : ''}: {withU(e.volumeMl, e.uMl, 'mL')} ({methodLabel(e.method)})</Text>
             ))}
             {a.pKa.map((p, i) => (
               <Text key={`pka${i}`} numeric>pKa{a.pKa.length > 1 ? i + 1 : ''}: {withU(p, a.pKaU[i])} ({a.fit ? 'whole-curve fit' : 'half-equivalence'}); Ka {num(a.Ka[i], 3)} mol/L</Text>
@@ -120,7 +120,7 @@ function Report({ d }: { d: RunDetail }) {
             {a.analyteConcentrationM != null && <Text numeric>Concentration: {withU(a.analyteConcentrationM, a.analyteConcentrationU, 'mol/L')}</Text>}
             <Text variant="label">Methods</Text>
             {a.methods.map((m, i) => (
-              <Text key={i} variant="caption" numeric>{m.method} (step {m.step}): {withU(m.volumeMl, m.uMl, 'mL')}{m.note ? ` — ${m.note}` : ''}</Text>
+              <Text key={i} variant="caption" numeric>{methodLabel(m.method)}{a.equivalencePoints.length > 1 ? ` (step ${m.step})` : ''}: {withU(m.volumeMl, m.uMl, 'mL')}{m.note ? ` — ${m.note}` : ''}</Text>
             ))}
             {a.warnings.map((w) => (
               <Text key={w} tone="warn" variant="caption">⚠ {w}</Text>

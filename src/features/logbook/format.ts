@@ -14,3 +14,13 @@ export function withU(x: number | null | undefined, u: number | null | undefined
 
 export const day = (iso: string) => iso.slice(0, 10);
 export const when = (iso: string) => iso.slice(0, 16).replace('T', ' ');
+
+/** Readable names of the engine's methods (shared/schemas/run-document.ts methodName) for reports. */
+const METHOD_LABELS: Record<string, string> = {
+  derivative: 'First derivative',
+  secondDerivative: 'Second derivative',
+  granBefore: 'Gran plot, before the equivalence point',
+  granAfter: 'Gran plot, after the equivalence point',
+  fit: 'Whole-curve fit',
+};
+export const methodLabel = (m: string) => METHOD_LABELS[m] ?? m;
