@@ -111,6 +111,17 @@ CREATE TABLE outbox (
 CREATE INDEX outbox_pending ON outbox (state, seq);
 `,
   },
+  {
+    version: 2,
+    // The lab's calibrations overview as last fetched (src/local/calibrationsCache.ts), so run setup works offline.
+    sql: `
+CREATE TABLE calibrations_cache (
+  lab_id TEXT PRIMARY KEY NOT NULL,
+  overview_json TEXT NOT NULL,
+  fetched_wall_ms INTEGER NOT NULL
+);
+`,
+  },
 ];
 
 /** Minimal surface of an expo-sqlite database the migrator needs (kept narrow so it is easy to fake). */
