@@ -65,12 +65,7 @@ export const authRoutes = [
     summary: 'End the session of the refresh cookie (and of the access token, if sent).',
     handler: async ({ app, req, res }) => {
       // Signing out must work with an expired access token too; the cookie alone identifies the session.
-      let caller = null;
-      try {
-        caller = await new Authenticator(app).caller(req);
-      } catch {
-        caller = null;
-      }
+      const caller = await new Authenticator(app).caller(req).catch(() => null);
       await accounts.logout(app, readCookie(req, REFRESH_COOKIE), caller);
       res.clearCookie(REFRESH_COOKIE, { path: COOKIE_PATH });
     },

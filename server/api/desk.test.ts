@@ -9,7 +9,7 @@ import { startFakeS3 } from '../storage/fake-s3-server';
 import { S3Store } from '../storage/s3';
 import { LocalDiskStore, useStorage } from '../storage';
 import { closeTemplate } from '../testing/db';
-import { mkdtempSync, rmSync } from 'node:fs';
+import { mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 

@@ -42,6 +42,8 @@ function receive(req: Request, res: Response): Promise<Express.Multer.File> {
 /** Keeps a file name fit for a header: no path, no control characters, at most 150 characters. */
 export function cleanName(name: string): string {
   const base = name.split(/[\\/]/).pop() ?? 'file';
+  // Control characters are exactly what must not reach a Content-Disposition header.
+  // eslint-disable-next-line no-control-regex
   const clean = base.replace(/[\u0000-\u001f\u007f"]/g, '').trim().slice(-150);
   return clean || 'file';
 }
