@@ -8,7 +8,6 @@ import { space } from '../../theme/tokens';
 import { Badge, Button, Card, Field, Screen, Segmented, Text } from '../../ui';
 import { FormMessage } from '../auth/FormMessage';
 import { serverErrors, zodFieldErrors, type FieldErrors } from '../auth/formErrors';
-import { useSignOut } from '../auth/hooks';
 import { describeAudit } from './auditText';
 import { useAudit, useChangeRole, useInvitations, useInvite, useMembers, useSetDisabled, useWithdrawInvitation } from './hooks';
 
@@ -23,13 +22,13 @@ const ROLE_HELP: Record<Role, string> = {
   viewer: 'reads and comments',
 };
 
-/** The lab section: who is in the lab; managers also invite, change roles, disable, and read the audit trail. */
+/**
+ * The lab section: who is in the lab; managers also invite, change roles, disable, and read the audit trail.
+ * Signing out and switching labs live in the app shell's status area (src/features/shell/StatusArea.tsx).
+ */
 export function LabScreen() {
   const user = useSession((s) => s.user);
-  const labs = useSession((s) => s.labs);
   const membership = useSession(activeMembership);
-  const setActiveLab = useSession((s) => s.setActiveLab);
-  const signOut = useSignOut();
 
   if (!user || !membership) {
     return (
@@ -48,18 +47,9 @@ export function LabScreen() {
     <Screen
       title={membership.labName}
       subtitle={`You are ${user.displayName} (${user.email}), ${membership.role} here.`}
-      actions={<Button kind="secondary" label="Sign out" onPress={() => signOut.mutate()} busy={signOut.isPending} testID="sign-out" />}
       testID="screen-lab"
     >
       {membership.isDemo ? <Badge label="Demo lab: invented people and data" tone="warn" /> : null}
-      {labs.length > 1 ? (
-        <Segmented
-          label="Lab"
-          options={labs.slice(0, 4).map((l) => ({ key: l.labId, label: l.labName }))}
-          value={membership.labId}
-          onChange={setActiveLab}
-        />
-      ) : null}
       <Members labId={membership.labId} manager={manager} selfId={user.id} />
       {manager ? <Invitations labId={membership.labId} /> : null}
       {manager ? <AuditTrail labId={membership.labId} /> : null}
@@ -201,6 +191,7 @@ function AuditTrail({ labId }: { labId: string }) {
 const styles = StyleSheet.create({
   row: { flexDirection: 'row', alignItems: 'center', flexWrap: 'wrap', gap: space.sm, paddingVertical: space.xs },
   grow: { flexGrow: 1, flexShrink: 1, minWidth: 160 },
-  controls: { flexDirection: 'row', alignItems: 'center', gap: space.sm, flexWrap: 'wrap' },
+  // maxWidth: on a phone the role switch and Disable do not fit one line; they wrap instead of running off the card.
+  controls: { flexDirection: 'row', alignItems: 'center', gap: space.sm, flexWrap: 'wrap', maxWidth: '100%' },
   when: { minWidth: 150 },
 });

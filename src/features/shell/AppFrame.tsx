@@ -12,7 +12,7 @@ import { SECTIONS, sectionOf } from './sections';
  * Navigation around every screen: a bottom bar on a phone (reachable with the thumb while the other hand is on the
  * stopcock), a side rail on a wide screen.
  */
-export function AppFrame({ children, status }: { children: ReactNode; status?: ReactNode }) {
+export function AppFrame({ children, status, banner }: { children: ReactNode; status?: ReactNode; banner?: ReactNode }) {
   const size = useLayoutSize();
   const wide = size === 'wide';
   const current = sectionOf(usePathname());
@@ -52,13 +52,17 @@ export function AppFrame({ children, status }: { children: ReactNode; status?: R
           {items}
           <View style={styles.railStatus}>{status}</View>
         </View>
-        <View style={styles.main}>{children}</View>
+        <View style={styles.main}>
+          {banner}
+          {children}
+        </View>
       </View>
     );
   }
   return (
     <View style={[styles.phoneRoot, { paddingTop: insets.top }]}>
       {status ? <View style={styles.topStatus}>{status}</View> : null}
+      {banner}
       <View style={styles.main}>{children}</View>
       <View
         style={[styles.bar, { paddingBottom: Math.max(insets.bottom, space.xs) }]}
