@@ -6,7 +6,7 @@ export default defineConfig({
     include: ['shared/**/*.test.ts', 'server/**/*.test.ts', 'src/**/*.test.ts', 'db/**/*.test.ts'],
     environment: 'node',
     testTimeout: 30_000,
-    hookTimeout: 60_000,
+    hookTimeout: 180_000,
     pool: 'forks',
   },
 });

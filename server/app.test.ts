@@ -47,3 +47,20 @@ describe('foundation API', () => {
     expect(res.headers['content-security-policy']).toContain("default-src 'self'");
   });
 });
+
+describe('serving the web export', () => {
+  it('answers page addresses with the shell and missing files with 404, never HTML for a script', async () => {
+    const { mkdtempSync, writeFileSync } = await import('node:fs');
+    const { tmpdir } = await import('node:os');
+    const path = await import('node:path');
+    const dir = mkdtempSync(path.join(tmpdir(), 'halfmark-web-'));
+    writeFileSync(path.join(dir, 'index.html'), '<!doctype html><title>Halfmark</title>');
+    const web = createApp({ database, webDir: dir, log: () => {} });
+    const page = await request(web).get('/logbook/some-run').set('accept', 'text/html').expect(200);
+    expect(page.text).toContain('<title>Halfmark</title>');
+    expect(page.headers['cross-origin-embedder-policy']).toBe('require-corp');
+    const script = await request(web).get('/sw-missing.js').set('accept', '*/*');
+    expect(script.status).toBe(404);
+    expect(script.headers['content-type']).not.toMatch(/text\/html/);
+  });
+});

@@ -70,9 +70,11 @@ export function createApp(deps: AppDeps): Express {
         },
       }),
     );
-    // Single-page app: every other GET is the shell; the router decides what to show (including "not found").
+    // Single-page app: every other page address is the shell; the router decides what to show (including "not
+    // found"). A missing file (a path with an extension: a script, the service worker, an image) is a 404, never the
+    // shell, so a browser is not handed HTML where it expected a script.
     app.get('/*splat', (req, res, next) => {
-      if (req.accepts('html')) {
+      if (req.accepts('html') && !/\.[a-z0-9]+$/i.test(req.path)) {
         res.setHeader('Cache-Control', 'no-cache');
         res.sendFile(path.join(webDir, 'index.html'));
       } else next();
