@@ -27,7 +27,10 @@ export async function fillSetup(page: Page, v: SetupValues) {
   await fill('estMolarMass', v.estMolarMass);
   await fill('estConcentration', v.estConcentration);
   await fill('estPKa', v.estPKa);
+  // Typed values mean typing by hand: signed in, the lab's calibrations in force are chosen otherwise.
+  await page.getByTestId('setup-lot-manual').click();
   await fill('titrantM', v.titrantM);
+  await page.getByTestId('setup-drip-manual').click();
   await fill('rate', v.rate);
   await fill('startMl', v.startMl);
   await fill('temperatureC', v.temperatureC);

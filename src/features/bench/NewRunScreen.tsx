@@ -1,12 +1,14 @@
 // Setting up a run: sample, titrant, drip rate, electrode, temperature; the plan updates as the form fills.
-// Titrant lots and lab calibrations arrive with the lab's data (issue 7); until then each is typed by hand and
-// flagged as such, and the setup records its source so a chosen calibration slots in.
+// Titrant lot, drip-rate and electrode calibration are chosen from the lab's (CalibrationPicker, cached on the
+// device for offline use); typing by hand stays possible and is flagged on the run.
 import { router } from 'expo-router';
 import { useMemo, useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { useLayoutSize } from '../../theme/layout';
 import { space } from '../../theme/tokens';
-import { Button, Card, Field, Screen, Segmented, Text } from '../../ui';
+import { Button, Card, Field, Screen, Text } from '../../ui';
+import { applyChoice, choiceWarnings, MANUAL, resolveChoice, type CalibrationChoice } from './calibrationChoice';
+import { CalibrationPicker, useSetupCalibrations } from './CalibrationPicker';
 import { LocalGate } from './LocalGate';
 import { planRun } from './plan';
 import { PlanCard } from './PlanCard';
@@ -70,14 +72,22 @@ export function NewRunScreen() {
 function NewRunForm({ create }: { create(s: RunSetup): Promise<{ id: string }> }) {
   const wide = useLayoutSize() === 'wide';
   const [f, setF] = useState<Form>(EMPTY);
-  const [electrode, setElectrode] = useState<'none' | 'manual'>('none');
+  // The lab's calibrations: the ones in force are chosen unless the analyst picks another or types by hand.
+  const [nowMs] = useState(() => Date.now());
+  const cal = useSetupCalibrations(nowMs);
+  const [picked, setPicked] = useState<Partial<CalibrationChoice>>({});
+  const choice = resolveChoice(picked, cal.options);
+  const pick = (k: keyof CalibrationChoice) => (id: string) => setPicked((x) => ({ ...x, [k]: id }));
   const [touched, setTouched] = useState(false);
   const [busy, setBusy] = useState(false);
   const [saveError, setSaveError] = useState<string | null>(null);
-  const parsed = useMemo(() => runSetupSchema.safeParse(toSetup(f, electrode === 'manual')), [f, electrode]);
+  const parsed = useMemo(
+    () => runSetupSchema.safeParse(applyChoice(toSetup(f, choice.electrode === MANUAL) as Parameters<typeof applyChoice>[0], choice, cal.options)),
+    [f, choice.titrant, choice.drip, choice.electrode, cal.options], // eslint-disable-line react-hooks/exhaustive-deps
+  );
   const errors = touched && !parsed.success ? issuesByField(parsed.error) : {};
   const plan = useMemo(() => (parsed.success ? planRun(parsed.data) : null), [parsed]);
-  const warnings = parsed.success ? setupWarnings(parsed.data, Date.now()) : [];
+  const warnings = parsed.success ? [...choiceWarnings(choice, cal.options), ...setupWarnings(parsed.data, Date.now(), cal.electrodeMaxAgeH)] : [];
   const set = (k: keyof Form) => (t: string) => setF((x) => ({ ...x, [k]: t }));
   const fld = (k: keyof Form, label: string, unit: string | undefined, path: string, hint?: string, extra?: object) => (
     <Field label={label} unit={unit} value={f[k]} onChangeText={set(k)} error={errors[path]} hint={hint} keyboardType="decimal-pad" testID={`setup-${k}`} {...extra} />
@@ -113,32 +123,35 @@ function NewRunForm({ create }: { create(s: RunSetup): Promise<{ id: string }> }
           <View style={styles.half}>{fld('estPKa', 'Estimated pKa', undefined, 'sample.estPKa', 'If known; several separated by spaces.', { keyboardType: 'default' })}</View>
         </View>
       </Card>
+      {cal.source ? (
+        <Text variant="caption" tone={cal.source.tone} testID="setup-calibrations-source">
+          {cal.source.text}
+        </Text>
+      ) : null}
       <Card title="Titrant (NaOH)">
-        <Text variant="caption" tone="muted">Standardised lots of your lab appear here once the lab's data is on this device; for now type the concentration.</Text>
-        <View style={styles.pair}>
-          <View style={styles.half}>{fld('titrantM', 'Concentration', 'mol/L', 'titrant.concentrationM')}</View>
-          <View style={styles.half}>{fld('standardisedOn', 'Standardised on', undefined, 'titrant.standardisedOn', 'YYYY-MM-DD', { keyboardType: 'default', placeholder: '2026-01-31' })}</View>
-        </View>
+        <CalibrationPicker label="Titrant lot" testID="setup-lot" options={cal.options?.titrant ?? []} value={choice.titrant} onChange={pick('titrant')} manualLabel="Type the concentration">
+          <View style={styles.pair}>
+            <View style={styles.half}>{fld('titrantM', 'Concentration', 'mol/L', 'titrant.concentrationM')}</View>
+            <View style={styles.half}>{fld('standardisedOn', 'Standardised on', undefined, 'titrant.standardisedOn', 'YYYY-MM-DD', { keyboardType: 'default', placeholder: '2026-01-31' })}</View>
+          </View>
+        </CalibrationPicker>
       </Card>
       <Card title="Burette and drip rate">
-        <Text variant="caption" tone="muted">Choose a drip-rate calibration of the lab once available; a rate typed here is flagged on the run.</Text>
-        <View style={styles.pair}>
-          <View style={styles.half}>{fld('rate', 'Drip rate', 'mL/s', 'delivery.rateMlPerS')}</View>
-          <View style={styles.half}>{fld('startMl', 'Burette start reading', 'mL', 'delivery.startBuretteMl')}</View>
-        </View>
+        <CalibrationPicker label="Drip-rate calibration" testID="setup-drip" options={cal.options?.drip ?? []} value={choice.drip} onChange={pick('drip')} manualLabel="Type a drip rate">
+          {fld('rate', 'Drip rate', 'mL/s', 'delivery.rateMlPerS')}
+        </CalibrationPicker>
+        {fld('startMl', 'Burette start reading', 'mL', 'delivery.startBuretteMl')}
       </Card>
       <Card title="Electrode and temperature">
-        <Segmented
+        <CalibrationPicker
           label="Electrode calibration"
           testID="setup-electrode"
-          value={electrode}
-          onChange={(k) => setElectrode(k)}
-          options={[
-            { key: 'none', label: 'None' },
-            { key: 'manual', label: 'Type slope and offset' },
-          ]}
-        />
-        {electrode === 'manual' ? (
+          options={cal.options?.electrode ?? []}
+          value={choice.electrode}
+          onChange={pick('electrode')}
+          noneLabel="None (pH typed from the meter)"
+          manualLabel="Type slope and offset"
+        >
           <>
             <View style={styles.pair}>
               <View style={styles.half}>{fld('slope', 'Slope', 'mV/pH', 'electrode.slopeMvPerPH', 'Negative, about −59 at 25 °C.', { keyboardType: 'numbers-and-punctuation' })}</View>
@@ -149,7 +162,7 @@ function NewRunForm({ create }: { create(s: RunSetup): Promise<{ id: string }> }
               <View style={styles.half}>{fld('calibratedAt', 'Calibrated on', undefined, 'electrode.calibratedAtMs', 'YYYY-MM-DD HH:MM', { keyboardType: 'default' })}</View>
             </View>
           </>
-        ) : null}
+        </CalibrationPicker>
         {fld('temperatureC', 'Temperature of the sample', '°C', 'temperatureC')}
       </Card>
     </View>
