@@ -335,7 +335,6 @@ export class ChargeBalanceModel {
     const nbar = this.nbar;
     const Ct = this.Ct;
     const Vt = this.V0 + V;
-    const h = this.h;
     const Fx = this.dFdlnh;
     if (this.activity === 'none') {
       for (let k = 0; k < n; k++) {

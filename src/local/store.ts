@@ -1,3 +1,5 @@
+/* eslint-disable @typescript-eslint/no-explicit-any -- rows come back from SQLite untyped; the *FromSql mappers
+   at the bottom are the typed boundary. */
 // Repository over the local database. Every write is one transaction that also appends the record to the outbox,
 // and resolves only after COMMIT: the UI shows a reading as saved only once this promise has resolved.
 // Writes are queued one at a time because expo-sqlite on web has no exclusive transactions (a second BEGIN from an

@@ -6,7 +6,6 @@ export function describeSync(s: SyncStatus | null, signedIn: boolean): { label: 
   if (!signedIn) return { label: 'Not signed in: kept on this device', tone: 'neutral' };
   if (!s) return { label: 'Sync starting', tone: 'neutral' };
   const rejected = s.rejected ? ` · ${s.rejected} rejected` : '';
-  const tone: BadgeTone = s.rejected ? 'danger' : 'neutral';
   switch (s.state) {
     case 'offline':
       return { label: `Offline${s.waiting ? ` · ${s.waiting} waiting` : ''}${rejected}`, tone: s.rejected ? 'danger' : 'warn' };
