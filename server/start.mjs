@@ -5,6 +5,7 @@ import { spawn, spawnSync } from 'node:child_process';
 const build = spawnSync(process.execPath, ['server/build-web.mjs', '--if-stale'], { stdio: 'inherit' });
 if (build.status !== 0) process.exit(build.status ?? 1);
 
-const child = spawn('npx', ['tsx', 'server/main.ts'], { stdio: 'inherit' });
+// node itself (not npx) runs the server, so Ctrl-C and SIGTERM reach it directly.
+const child = spawn(process.execPath, ['--import', 'tsx', 'server/main.ts'], { stdio: 'inherit' });
 for (const sig of ['SIGINT', 'SIGTERM']) process.on(sig, () => child.kill(sig));
 child.on('exit', (code, signal) => process.exit(code ?? (signal ? 1 : 0)));
