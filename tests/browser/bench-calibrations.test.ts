@@ -2,12 +2,19 @@
 // ones in force, plans with the calibrated rate, and still offers them offline from the device's copy.
 import { afterAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
+import { shotScrolled } from './bench-helpers';
 import { closeBrowser, DESKTOP, openApp, PHONE, shot } from './harness';
 
 afterAll(closeBrowser);
 
 async function signInAsAnalyst(page: Page, name: string) {
   await page.goto('/sign-in');
+  try {
+    await page.getByTestId('sign-in-email').waitFor({ timeout: 90_000 });
+  } catch (e) {
+    await shot(page, `${name}-sign-in-not-shown`);
+    throw e;
+  }
   // Lets the test read the created run back from the device's store (src/local/localDb.ts, off unless set).
   await page.evaluate(() => localStorage.setItem('halfmark.automation', '1'));
   await page.getByTestId('sign-in-email').fill('analyst@demo.halfmark.test');
@@ -73,7 +80,7 @@ describe('Run setup with the lab calibrations', () => {
 
       const warnings = (await page.getByTestId('setup-warnings').count()) ? await page.getByTestId('setup-warnings').innerText() : '';
       expect(warnings).not.toMatch(/typed by hand/);
-      await shot(page, `bench-calibrations-setup-${label}`);
+      await shotScrolled(page, `bench-calibrations-setup-${label}`, shot, 6);
 
       // The run keeps which calibrations it used.
       await page.getByTestId('create-run').click();
@@ -92,6 +99,9 @@ describe('Run setup with the lab calibrations', () => {
       expect(typeof setup.electrode.calibrationId).toBe('string');
 
       // Offline: the service worker serves the app, the device's copy serves the calibrations.
+      // Once the worker is active, a page not yet claimed by it is taken over at its next load.
+      await page.evaluate(() => navigator.serviceWorker.ready.then(() => undefined));
+      if (!(await page.evaluate(() => navigator.serviceWorker.controller !== null))) await page.reload();
       await page.waitForFunction(() => navigator.serviceWorker?.controller !== null, undefined, { timeout: 30_000 });
       await context.setOffline(true);
       await page.goto('/bench/new');
@@ -105,7 +115,7 @@ describe('Run setup with the lab calibrations', () => {
       await page.getByTestId('setup-rate').fill('0.03');
       await expect.poll(async () => (await page.getByTestId('setup-warnings').count()) && page.getByTestId('setup-warnings').innerText()).toMatch(/Drip rate typed by hand/);
       await page.getByTestId('setup-drip-option').first().click();
-      await shot(page, `bench-calibrations-offline-${label}`);
+      await shotScrolled(page, `bench-calibrations-offline-${label}`, shot, 6);
       await app.close();
     });
   }
