@@ -62,9 +62,20 @@ async function main() {
 
   let closing = false;
   const shutdown = (signal: string) => {
-    if (closing) return;
+    if (closing) {
+      // A second Ctrl-C means now.
+      console.error(`${signal} again: stopping without waiting.`);
+      release?.();
+      process.exit(1);
+    }
     closing = true;
     console.log(`${signal}: closing Halfmark…`);
+    // A close that hangs (a stuck connection, a data directory removed under us) must not keep the process alive.
+    setTimeout(() => {
+      console.error('Closing took longer than 15 s; stopping anyway.');
+      release?.();
+      process.exit(1);
+    }, 15_000).unref();
     server.close();
     server.closeAllConnections?.();
     mail
