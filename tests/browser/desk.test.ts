@@ -58,7 +58,13 @@ describe('the team desk', () => {
     await page.goto('/logbook');
     await page.getByTestId('filter-status-submitted').click();
     const rows = page.locator('[data-testid^="run-row-"]');
-    await expect.poll(() => rows.count(), { timeout: 30_000 }).toBeGreaterThanOrEqual(1);
+    // Wait for the filtered page itself: until it arrives the previous (unfiltered) rows are still on screen.
+    await expect
+      .poll(async () => {
+        const texts = await rows.allInnerTexts();
+        return texts.length > 0 && texts.every((t) => /submitted/i.test(t));
+      }, { timeout: 30_000 })
+      .toBe(true);
     const id = (await rows.first().getAttribute('data-testid'))!.slice('run-row-'.length);
     await page.goto(`/logbook/${id}`);
     await page.getByTestId('review-password').fill('not the password');
