@@ -36,6 +36,7 @@ export const LOCAL_ANALYST = { id: 'local-analyst', name: 'Analyst on this devic
 
 export class LocalStore {
   private queue: Promise<unknown> = Promise.resolve();
+  private readonly committed = new Set<() => void>();
   private constructor(
     private readonly db: Db,
     readonly device: DeviceRow,
@@ -53,8 +54,17 @@ export class LocalStore {
     return new LocalStore(db, { id: row.id, analystId: row.analyst_id, analystName: row.analyst_name });
   }
 
+  /**
+   * Calls `fn` after each recording write has committed (not after the sync's own writes, which would loop).
+   * The sync uses it to send new readings promptly, so colleagues following the run see them.
+   */
+  onCommitted(fn: () => void): () => void {
+    this.committed.add(fn);
+    return () => this.committed.delete(fn);
+  }
+
   /** Runs `work` inside BEGIN…COMMIT after every earlier write has finished. */
-  private write<T>(work: () => Promise<T>): Promise<T> {
+  private write<T>(work: () => Promise<T>, notify = true): Promise<T> {
     const next = this.queue.then(async () => {
       await this.db.execAsync('BEGIN');
       try {
@@ -67,6 +77,7 @@ export class LocalStore {
       }
     });
     this.queue = next.catch(() => undefined);
+    if (notify) void next.then(() => this.committed.forEach((fn) => fn()), () => undefined);
     return next;
   }
 
@@ -75,7 +86,7 @@ export class LocalStore {
    * other write here, so its statements never interleave with a recording.
    */
   syncWrite<T>(work: (db: Db) => Promise<T>): Promise<T> {
-    return this.write(() => work(this.db));
+    return this.write(() => work(this.db), false);
   }
 
   /** For the sync: read access to the same database. */

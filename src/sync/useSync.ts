@@ -14,12 +14,28 @@ let engine: SyncEngine | null = null;
 let store: SqliteSyncStore | null = null;
 let owner: LocalStore | null = null;
 let status: SyncStatus | null = null;
+let unCommitted: (() => void) | null = null;
+let pushTimer: ReturnType<typeof setTimeout> | null = null;
 const listeners = new Set<() => void>();
+
+/**
+ * A recorded write is sent soon after it commits, so a colleague following the run sees it within a second or two;
+ * a short delay gathers a burst of taps into one push.
+ */
+const PUSH_DELAY_MS = 400;
 
 async function startFor(local: LocalStore) {
   if (owner === local) return;
   engine?.stop();
+  unCommitted?.();
   owner = local;
+  unCommitted = local.onCommitted(() => {
+    if (pushTimer !== null) return;
+    pushTimer = setTimeout(() => {
+      pushTimer = null;
+      requestSync();
+    }, PUSH_DELAY_MS);
+  });
   store = await openSyncStore(local, { defaultLab: () => useSession.getState().activeLabId });
   engine = new SyncEngine(
     store,
