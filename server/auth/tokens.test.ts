@@ -51,13 +51,13 @@ describe('access token verification', () => {
         .setProtectedHeader({ alg: 'HS512', typ: ACCESS_TOKEN.typ })
         .setIssuer(ACCESS_TOKEN.issuer).setAudience(ACCESS_TOKEN.audience).setSubject(fx.people.analyst.id)
         .setIssuedAt(t).setNotBefore(t).setExpirationTime(t + 600)
-        .sign(new TextEncoder().encode(TEST_JWT_SECRET + TEST_JWT_SECRET));
+        .sign(key);
     }],
     ['bad signature (another secret)', () => claims().sign(new TextEncoder().encode('another-secret-of-sufficient-length-000000'))],
-    ['tampered payload', async () => {
-      const [h, , s] = (await claims().sign(key)).split('.');
-      const p = Buffer.from(JSON.stringify({ sub: fx.people.manager.id, sid })).toString('base64url');
-      return `${h}.${p}.${s}`;
+    ['tampered payload (every claim valid, only the subject changed)', async () => {
+      const [h, p0, s] = (await claims().sign(key)).split('.');
+      const payload = { ...JSON.parse(Buffer.from(p0, 'base64url').toString()), sub: fx.people.manager.id };
+      return `${h}.${Buffer.from(JSON.stringify(payload)).toString('base64url')}.${s}`;
     }],
     ['wrong issuer', () => claims({ iss: 'someone-else' }).sign(key)],
     ['wrong audience', () => claims({ aud: 'another-api' }).sign(key)],
