@@ -9,7 +9,7 @@ import { useApprove, useComment, useReopen, useReturn, useRunDetail, useSubmit }
 import { downloadFile, uploadFile } from './download';
 import { methodLabel, num, when, withU } from './format';
 import { useQueryClient } from '@tanstack/react-query';
-import { deskKeys } from './api';
+import { keys } from '../../api/keys';
 
 type XY = { x: number; y: number };
 
@@ -242,7 +242,7 @@ function Attachments({ d }: { d: RunDetail }) {
       setErr(null);
       try {
         await uploadFile(`/runs/${d.run.id}/attachments`, f);
-        await qc.invalidateQueries({ queryKey: deskKeys.run(d.run.id) });
+        await qc.invalidateQueries({ queryKey: keys.run(d.run.id) });
       } catch (e) {
         setErr((e as Error).message);
       }
