@@ -5,6 +5,8 @@ import { APPROVAL_MEANING, type RunDetail } from '../../../shared/schemas/desk';
 import { colors, space } from '../../theme/tokens';
 import { Badge, Button, Card, Field, Screen, Text } from '../../ui';
 import { LineChart, type ChartMarker, type ChartSeries } from '../charts/LineChart';
+import { LiveStatus } from './LiveStatus';
+import { useLiveFollow } from './useLiveFollow';
 import { useApprove, useComment, useReopen, useReturn, useRunDetail, useSubmit } from './api';
 import { downloadFile, uploadFile } from './download';
 import { methodLabel, num, when, withU } from './format';
@@ -72,6 +74,8 @@ export function RunReportScreen({ runId }: { runId: string }) {
 function Report({ d }: { d: RunDetail }) {
   const a = d.analysis as AnalysisResult | null;
   const series = useMemo(() => reportSeries(d), [d]);
+  const live = useLiveFollow(d.run.id, d.run.status);
+  const following = live.mode !== 'stopped';
   const [busy, setBusy] = useState<string | null>(null);
   const [err, setErr] = useState<string | null>(null);
   const run = async (label: string, f: () => Promise<unknown>) => {
@@ -91,8 +95,14 @@ function Report({ d }: { d: RunDetail }) {
         <Badge label={d.run.status} tone={d.run.status === 'approved' ? 'ok' : d.run.status === 'submitted' ? 'accent' : 'neutral'} testID="run-status" />
         {d.revision.lockedAt && <Badge label={`locked ${when(d.revision.lockedAt)}`} tone="ok" />}
       </View>
+      <LiveStatus live={live} readings={d.readings} />
       <ReviewCard d={d} />
-      <Card title="Results">
+      <Card title={following ? 'Live estimates' : 'Results'} testID="results-card">
+        {following && (
+          <Text variant="caption" tone="muted">
+            The run is still being recorded: these numbers are worked out again as each reading arrives.
+          </Text>
+        )}
         {a ? (
           <View testID="results">
             {a.equivalencePoints.map((e) => (
@@ -144,7 +154,7 @@ function Report({ d }: { d: RunDetail }) {
             ))}
           </View>
           {d.readings.map((r) => (
-            <View key={r.id} style={[styles.tr, r.supersededBy ? styles.superseded : null]}>
+            <View key={r.id} style={[styles.tr, r.supersededBy ? styles.superseded : null]} testID={`report-reading-${r.id}`}>
               <Text numeric style={styles.cell}>{num(r.timeS, 6)}</Text>
               <Text numeric style={styles.cell}>{num(r.volumeMl, 5)}</Text>
               <Text numeric style={[styles.cell, r.supersededBy ? styles.strike : null]}>{num(r.pH, 4)}</Text>
