@@ -101,7 +101,7 @@ describe('the team desk', () => {
       await page.getByTestId('results').waitFor({ timeout: 30_000 });
       await page.getByTestId('readings-table').waitFor();
       expect(await page.getByTestId('review-approve').count()).toBe(0);
-      await shot(page, `desk-report-${label}`);
+      await shotScrolled(page, `desk-report-${label}`, shot, 8);
       await exploreCurve(page, label === 'desktop' ? 'mouse' : 'keys');
       await shot(page, `desk-report-crosshair-${label}`);
       await app.close();

@@ -8,6 +8,7 @@
 import { useMemo, useState } from 'react';
 import { StyleSheet, View, type AccessibilityActionEvent, type LayoutChangeEvent, type PointerEvent } from 'react-native';
 import Svg, { Circle, Line, Rect, Text as SvgText } from 'react-native-svg';
+import { useLayoutSize } from '../../theme/layout';
 import { colors, fonts, radius, space } from '../../theme/tokens';
 import { Button, Text } from '../../ui';
 import {
@@ -36,6 +37,7 @@ import { capturePointer, pointerX } from './pointer';
 
 const NO_MARKERS: readonly ChartMarker[] = [];
 const HINT = 'Point at the plot, or touch and slide along it, to read values. With a mouse, drag across it to zoom in. Keys: ← → step through points, + − zoom, 0 whole range.';
+const HINT_PHONE = 'Touch and slide along the plot to read values.';
 
 interface Reading {
   series: ChartSeries;
@@ -50,6 +52,7 @@ export function ChartExplorer({ series, xLabel, yLabel, yRightLabel, markers = N
   const [cursorX, setCursorX] = useState<number | null>(null);
   const [drag, setDrag] = useState<{ from: number; to: number } | null>(null);
   const [focused, setFocused] = useState(false);
+  const phone = useLayoutSize() === 'phone';
 
   const full = useMemo<Domain | null>(() => xDomain ?? fullXDomain(series, markers), [xDomain, series, markers]);
   const view: Domain | null = full && zoom ? clampDomain(zoom, full) : full;
@@ -172,7 +175,7 @@ export function ChartExplorer({ series, xLabel, yLabel, yRightLabel, markers = N
     if (e.nativeEvent.actionName === 'decrement') step(-1);
   };
 
-  const plotW = scales ? width - scales.innerR - PAD.left : 0;
+  const plotW = scales ? width - scales.innerR - scales.padL : 0;
   const cx = stopIndex >= 0 && scales && inView(stops[stopIndex]) ? scales.x(stops[stopIndex]) : null;
   // The x tag under the crosshair, kept whole inside the chart at either end.
   const tagX = cx === null ? 0 : Math.min(Math.max(cx, 31), width - 31);
@@ -192,7 +195,7 @@ export function ChartExplorer({ series, xLabel, yLabel, yRightLabel, markers = N
               <Svg width={width} height={height}>
                 {drag && Math.abs(drag.to - drag.from) > 2 ? (
                   <Rect
-                    x={Math.max(PAD.left, Math.min(drag.from, drag.to))}
+                    x={Math.max(scales.padL, Math.min(drag.from, drag.to))}
                     y={PAD.top}
                     width={Math.min(Math.abs(drag.to - drag.from), plotW)}
                     height={height - PAD.top - PAD.bottom}
@@ -252,16 +255,16 @@ export function ChartExplorer({ series, xLabel, yLabel, yRightLabel, markers = N
           ))
         ) : (
           <Text variant="caption" tone="muted">
-            {HINT}
+            {phone ? HINT_PHONE : HINT}
           </Text>
         )}
       </View>
       <View style={styles.controls}>
         <Button label="Zoom in" kind="secondary" onPress={zoomIn} disabled={!view} testID={testID ? `${testID}-zoom-in` : undefined} />
-        <Button label="Zoom out" kind="secondary" onPress={zoomOut} disabled={!zoomed} testID={testID ? `${testID}-zoom-out` : undefined} />
-        <Button label="Whole range" kind="quiet" onPress={() => setZoom(null)} disabled={!zoomed} testID={testID ? `${testID}-zoom-reset` : undefined} />
         {zoomed ? (
           <>
+            <Button label="Zoom out" kind="secondary" onPress={zoomOut} testID={testID ? `${testID}-zoom-out` : undefined} />
+            <Button label="Whole range" kind="quiet" onPress={() => setZoom(null)} testID={testID ? `${testID}-zoom-reset` : undefined} />
             <Button label="◀" accessibilityLabel="Move the view to smaller x" kind="quiet" onPress={() => pan(-1)} testID={testID ? `${testID}-pan-left` : undefined} />
             <Button label="▶" accessibilityLabel="Move the view to larger x" kind="quiet" onPress={() => pan(1)} testID={testID ? `${testID}-pan-right` : undefined} />
             <Text variant="caption" tone="muted" numeric testID={testID ? `${testID}-range` : undefined}>

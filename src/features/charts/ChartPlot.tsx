@@ -29,7 +29,9 @@ export interface ChartPlotProps {
 
 export const ChartPlot = memo(function ChartPlot({ width, height, series, scales, markers, xLabel, yLabel, yRightLabel, clip }: ChartPlotProps) {
   const clipId = `plot${useId().replace(/[^A-Za-z0-9]/g, '')}`;
-  const { x, yL, yR, innerR } = scales;
+  const { x, yL, yR, innerR, padL } = scales;
+  // The right axis speaks for the series drawn on it (the derivative on the bench, Gran after Ve on the report).
+  const rightColor = series.find((s) => s.axis === 'right')?.color ?? colors.derivative;
   const [x0, x1] = x.domain();
   const plotH = height - PAD.top - PAD.bottom;
   const midY = PAD.top + plotH / 2;
@@ -47,24 +49,26 @@ export const ChartPlot = memo(function ChartPlot({ width, height, series, scales
       {clip ? (
         <Defs>
           <ClipPath id={clipId}>
-            <Rect x={PAD.left} y={PAD.top} width={Math.max(0, width - innerR - PAD.left)} height={plotH} />
+            <Rect x={padL} y={PAD.top} width={Math.max(0, width - innerR - padL)} height={plotH} />
           </ClipPath>
         </Defs>
       ) : null}
       <Rect x={0} y={0} width={width} height={height} fill={colors.surface} />
-      {yL.ticks(5).map((t) => (
-        <G key={`yl${t}`}>
-          <Line x1={PAD.left} x2={width - innerR} y1={yL(t)} y2={yL(t)} stroke={colors.grid} strokeWidth={1} />
-          <SvgText x={PAD.left - 6} y={yL(t) + 4} fontSize={FONT} fill={colors.inkMuted} textAnchor="end" fontFamily={fonts.regular}>
-            {String(t)}
+      {scales.yTicksL.map((t) => (
+        <G key={`yl${t.value}`}>
+          <Line x1={padL} x2={width - innerR} y1={yL(t.value)} y2={yL(t.value)} stroke={colors.grid} strokeWidth={1} />
+          <SvgText x={padL - 6} y={yL(t.value) + 4} fontSize={FONT} fill={colors.inkMuted} textAnchor="end" fontFamily={fonts.regular}>
+            {t.label}
           </SvgText>
         </G>
       ))}
-      {yR?.ticks(5).map((t) => (
-        <SvgText key={`yr${t}`} x={width - innerR + 6} y={yR(t) + 4} fontSize={FONT} fill={colors.derivative} fontFamily={fonts.regular}>
-          {String(t)}
-        </SvgText>
-      ))}
+      {yR
+        ? scales.yTicksR.map((t) => (
+            <SvgText key={`yr${t.value}`} x={width - innerR + 6} y={yR(t.value) + 4} fontSize={FONT} fill={rightColor} fontFamily={fonts.regular}>
+              {t.label}
+            </SvgText>
+          ))
+        : null}
       {x.ticks(Math.max(2, Math.floor(width / 80))).map((t) => (
         <G key={`x${t}`}>
           <Line x1={x(t)} x2={x(t)} y1={PAD.top} y2={height - PAD.bottom} stroke={colors.grid} strokeWidth={1} />
@@ -73,8 +77,8 @@ export const ChartPlot = memo(function ChartPlot({ width, height, series, scales
           </SvgText>
         </G>
       ))}
-      <Line x1={PAD.left} x2={width - innerR} y1={height - PAD.bottom} y2={height - PAD.bottom} stroke={colors.lineStrong} strokeWidth={1.5} />
-      <Line x1={PAD.left} x2={PAD.left} y1={PAD.top} y2={height - PAD.bottom} stroke={colors.lineStrong} strokeWidth={1.5} />
+      <Line x1={padL} x2={width - innerR} y1={height - PAD.bottom} y2={height - PAD.bottom} stroke={colors.lineStrong} strokeWidth={1.5} />
+      <Line x1={padL} x2={padL} y1={PAD.top} y2={height - PAD.bottom} stroke={colors.lineStrong} strokeWidth={1.5} />
       <G clipPath={clip ? `url(#${clipId})` : undefined}>
         {shownMarkers.map((m, i) =>
           m.x !== undefined ? (
@@ -86,8 +90,8 @@ export const ChartPlot = memo(function ChartPlot({ width, height, series, scales
             </G>
           ) : m.y !== undefined ? (
             <G key={`m${i}`}>
-              <Line x1={PAD.left} x2={width - innerR} y1={yL(m.y)} y2={yL(m.y)} stroke={m.color ?? colors.fit} strokeWidth={1.5} strokeDasharray="3 3" />
-              <SvgText x={PAD.left + 4} y={yL(m.y) - 4} fontSize={FONT} fill={m.color ?? colors.fit} fontFamily={fonts.semibold}>
+              <Line x1={padL} x2={width - innerR} y1={yL(m.y)} y2={yL(m.y)} stroke={m.color ?? colors.fit} strokeWidth={1.5} strokeDasharray="3 3" />
+              <SvgText x={padL + 4} y={yL(m.y) - 4} fontSize={FONT} fill={m.color ?? colors.fit} fontFamily={fonts.semibold}>
                 {m.label}
               </SvgText>
             </G>
@@ -100,14 +104,14 @@ export const ChartPlot = memo(function ChartPlot({ width, height, series, scales
           </G>
         ))}
       </G>
-      <SvgText x={(PAD.left + width - innerR) / 2} y={height - 6} fontSize={FONT + 1} fill={colors.ink} textAnchor="middle" fontFamily={fonts.semibold}>
+      <SvgText x={(padL + width - innerR) / 2} y={height - 6} fontSize={FONT + 1} fill={colors.ink} textAnchor="middle" fontFamily={fonts.semibold}>
         {xLabel}
       </SvgText>
       <SvgText x={12} y={midY} fontSize={FONT + 1} fill={colors.ink} textAnchor="middle" fontFamily={fonts.semibold} rotation={-90} origin={`12, ${midY}`}>
         {yLabel}
       </SvgText>
       {yRightLabel ? (
-        <SvgText x={width - 10} y={midY} fontSize={FONT + 1} fill={colors.derivative} textAnchor="middle" fontFamily={fonts.semibold} rotation={90} origin={`${width - 10}, ${midY}`}>
+        <SvgText x={width - 10} y={midY} fontSize={FONT + 1} fill={rightColor} textAnchor="middle" fontFamily={fonts.semibold} rotation={90} origin={`${width - 10}, ${midY}`}>
           {yRightLabel}
         </SvgText>
       ) : null}

@@ -16,12 +16,12 @@ import { keys } from '../../api/keys';
 type XY = { x: number; y: number };
 
 /** One report plot: the shared chart with its crosshair read-out and zoom (LineChart `interactive`). */
-function PlotCard({ title, series, yLabel, testID, markers }: { title: string; series: ChartSeries[]; yLabel: string; testID: string; markers?: ChartMarker[] }) {
+function PlotCard({ title, series, yLabel, yRightLabel, testID, markers }: { title: string; series: ChartSeries[]; yLabel: string; yRightLabel?: string; testID: string; markers?: ChartMarker[] }) {
   const n = series.reduce((k, s) => k + s.points.length, 0);
   if (!n) return null;
   return (
     <Card title={title} testID={testID}>
-      <LineChart interactive series={series} markers={markers} xLabel="Volume of titrant (mL)" xUnit="mL" yLabel={yLabel} summary={`${title}, ${n} points.`} height={280} testID={`${testID}-chart`} />
+      <LineChart interactive series={series} markers={markers} xLabel="Volume of titrant (mL)" xUnit="mL" yLabel={yLabel} yRightLabel={yRightLabel} summary={`${title}, ${n} points.`} height={280} testID={`${testID}-chart`} />
     </Card>
   );
 }
@@ -50,7 +50,8 @@ function reportSeries(d: RunDetail) {
     derivative: [{ id: 'd', label: 'dpH/dV', points: p.derivative, color: colors.derivative }],
     gran: [
       { id: 'gb', label: 'before Ve', points: p.granBefore, color: colors.acid, dots: true },
-      { id: 'ga', label: 'after Ve', points: p.granAfter, color: colors.base, dots: true },
+      // Values after Ve are orders of magnitude larger: their own axis, as on the bench (TitrationCharts GranChart).
+      { id: 'ga', label: 'after Ve', points: p.granAfter, color: colors.base, dots: true, axis: 'right' },
     ],
     residuals: [{ id: 'res', label: 'residual', points: p.residuals, color: colors.fit, dots: true }],
   } satisfies Record<string, ChartSeries[] | ChartMarker[]>;
@@ -127,7 +128,7 @@ function Report({ d }: { d: RunDetail }) {
       </Card>
       <PlotCard title="pH against volume" testID="plot-curve" yLabel="pH" series={series.curve} markers={series.markers} />
       <PlotCard title="Derivative" testID="plot-derivative" yLabel="dpH/dV (per mL)" series={series.derivative} markers={series.markers} />
-      <PlotCard title="Gran plot" testID="plot-gran" yLabel="Gran function" series={series.gran} />
+      <PlotCard title="Gran plot" testID="plot-gran" yLabel="V·10^−pH (before Ve)" yRightLabel="(V0+V)·10^(pH−pKw) (after Ve)" series={series.gran} />
       <PlotCard title="Fit residuals" testID="plot-residuals" yLabel="pH residual (fit − measured)" series={series.residuals} />
       <Card title="Calibrations and titrant used">
         {d.calibrations.map((c) => (
