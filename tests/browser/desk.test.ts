@@ -87,20 +87,23 @@ describe('the team desk', () => {
       await page.getByTestId('filter-status-submitted').click();
       await expect.poll(() => rows.count(), { timeout: 30_000 }).toBe(2);
       await shot(page, `desk-logbook-filtered-${label}`);
-      await page.getByTestId('filter-status-all').click();
-      await expect.poll(() => rows.count(), { timeout: 30_000 }).toBeGreaterThanOrEqual(6);
+      // The two submitted runs (analysed, awaiting review): compared, and one opened where a manager could approve.
       const ids = await rows.evaluateAll((els) => els.map((e) => e.getAttribute('data-testid')!.slice('run-row-'.length)));
       await page.getByTestId(`select-${ids[0]}`).click();
       await page.getByTestId(`select-${ids[1]}`).click();
       await page.getByTestId('compare-selected').click();
       await page.getByTestId('screen-compare').waitFor();
-      await page.getByTestId('compare-results').getByText('Ve ').first().waitFor();
+      const ve = page.getByTestId('compare-results').getByText(/^Ve \d+\.\d+ ± \d/);
+      await expect.poll(() => ve.count(), { timeout: 30_000 }).toBe(2);
       await page.getByTestId('align-fraction').click();
       await shot(page, `desk-compare-${label}`);
       await page.goto(`/logbook/${ids[0]}`);
       await page.getByTestId('results').waitFor({ timeout: 30_000 });
       await page.getByTestId('readings-table').waitFor();
+      await page.getByTestId('run-status').getByText('submitted').waitFor();
+      // A manager sees the review controls on this run (the last test approves one); a viewer sees none.
       expect(await page.getByTestId('review-approve').count()).toBe(0);
+      expect(await page.getByTestId('review-password').count()).toBe(0);
       await shotScrolled(page, `desk-report-${label}`, shot, 8);
       await exploreCurve(page, label === 'desktop' ? 'mouse' : 'keys');
       await shot(page, `desk-report-crosshair-${label}`);
