@@ -1,4 +1,5 @@
-import { QueryClientProvider } from '@tanstack/react-query';
+// The provider's own file: the package index would bring all of react-query to the first screen (metro.config.js).
+import { QueryClientProvider } from '@tanstack/react-query/build/modern/QueryClientProvider.js';
 import { useState, type ReactNode } from 'react';
 import { View } from 'react-native';
 import { SafeAreaProvider } from 'react-native-safe-area-context';
