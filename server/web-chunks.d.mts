@@ -1,0 +1,12 @@
+// Types for web-chunks.mjs (plain JavaScript: build-web.mjs runs it with node, without a TypeScript step).
+export const FIRST_SCREEN: string[];
+export interface ChunkModule {
+  id: number;
+  source: string;
+  deps: number[] | Record<string, unknown>;
+}
+export function readChunk(code: string): ChunkModule[] | null;
+export function staticDeps(deps: ChunkModule['deps']): number[];
+export function readExport(dist: string): { dir: string; chunks: Map<string, ChunkModule[] | null> };
+export function splitCommonChunk(dist: string, firstScreen?: string[]): string;
+export function dropSourceMaps(dist: string): void;
