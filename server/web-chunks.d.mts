@@ -7,6 +7,21 @@ export interface ChunkModule {
 }
 export function readChunk(code: string): ChunkModule[] | null;
 export function staticDeps(deps: ChunkModule['deps']): number[];
+export function sourcesOf(dir: string, file: string): string[];
 export function readExport(dist: string): { dir: string; chunks: Map<string, ChunkModule[] | null> };
+export function planSplit(
+  dist: string,
+  firstScreen?: string[],
+): {
+  dir: string;
+  html: string;
+  chunks: Map<string, ChunkModule[] | null>;
+  base: string;
+  commonFile: string;
+  startFiles: Set<string>;
+  keep: ChunkModule[];
+  later: ChunkModule[];
+  waiting: string[];
+} | null;
 export function splitCommonChunk(dist: string, firstScreen?: string[]): string;
 export function dropSourceMaps(dist: string): void;

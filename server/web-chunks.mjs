@@ -47,6 +47,15 @@ export function staticDeps(deps) {
 const write = (m) => `__d(${m.source},${m.id},${JSON.stringify(m.deps)});`;
 const hashed = (prefix, code) => `${prefix}-${createHash('md5').update(code).digest('hex')}.js`;
 
+/** The source files of a chunk, from its map: in a chunk of module definitions, one per module, in order. */
+export function sourcesOf(dir, file) {
+  try {
+    return JSON.parse(readFileSync(path.join(dir, `${file}.map`), 'utf8')).sources ?? [];
+  } catch {
+    return [];
+  }
+}
+
 /** Reads every chunk of an export: file name → modules (null for the runtime and worker bundles). */
 export function readExport(dist) {
   const dir = path.join(dist, ...JS_DIR);
@@ -56,31 +65,24 @@ export function readExport(dist) {
 }
 
 /**
- * Splits dist's common chunk (see the top of this file). Returns a one-line summary for the build log.
- * `firstScreen` lists route source files (relative to the project root) needed before the first screen draws.
+ * Works out the split without writing anything: which chunks the first screen loads (`startFiles`: the entry, any
+ * other module chunk in index.html except the common one, and the chunks of the `firstScreen` route files, found
+ * through the source maps), which shared modules it reaches (`keep`), which it does not (`later`), and which lazy
+ * chunks need the latter (`waiting`). Returns null when the export has no common chunk. Throws on any surprise.
  */
-export function splitCommonChunk(dist, firstScreen = FIRST_SCREEN) {
+export function planSplit(dist, firstScreen = FIRST_SCREEN) {
   const { dir, chunks } = readExport(dist);
-  const indexFile = path.join(dist, 'index.html');
-  const html = readFileSync(indexFile, 'utf8');
+  const html = readFileSync(path.join(dist, 'index.html'), 'utf8');
   const srcs = [...html.matchAll(/<script[^>]+src="([^"]+)"/g)].map((m) => m[1]);
   const scripts = srcs.map((s) => path.posix.basename(s));
   const commonFile = scripts.find((s) => s.startsWith('__common-'));
-  if (!commonFile) return 'no common chunk: nothing to split';
+  if (!commonFile) return null;
   // Chunk paths as the loader is asked for them (the script's folder, with any base URL).
   const base = `${path.posix.dirname(srcs[scripts.indexOf(commonFile)])}/`;
 
-  const sourcesOf = (f) => {
-    try {
-      return JSON.parse(readFileSync(path.join(dir, `${f}.map`), 'utf8')).sources ?? [];
-    } catch {
-      return [];
-    }
-  };
-  // The entry (and any other module chunk in index.html except the common one) plus the first screen's routes.
   const startFiles = new Set(scripts.filter((s) => chunks.get(s) && s !== commonFile));
   for (const route of firstScreen) {
-    const holders = [...chunks.keys()].filter((f) => chunks.get(f) && sourcesOf(f).some((s) => s.replace(/^\/+/, '') === route));
+    const holders = [...chunks.keys()].filter((f) => chunks.get(f) && sourcesOf(dir, f).some((s) => s.replace(/^\/+/, '') === route));
     if (holders.length !== 1) throw new Error(`${route} is in ${holders.length} chunks (expected 1; are source maps exported?)`);
     startFiles.add(holders[0]);
   }
@@ -111,19 +113,28 @@ export function splitCommonChunk(dist, firstScreen = FIRST_SCREEN) {
   const common = chunks.get(commonFile);
   const keep = common.filter((m) => needed.has(m.id));
   const later = common.filter((m) => !needed.has(m.id));
-  if (!later.length) return 'every shared module is needed at start: nothing to split';
   const laterIds = new Set(later.map((m) => m.id));
+  const waiting = [...chunks.keys()].filter(
+    (f) => chunks.get(f) && !startFiles.has(f) && f !== commonFile && [...closure(idsIn(f))].some((id) => laterIds.has(id)),
+  );
+  return { dir, html, chunks, base, commonFile, startFiles, keep, later, waiting };
+}
+
+/**
+ * Splits dist's common chunk (see the top of this file). Returns a one-line summary for the build log.
+ * `firstScreen` lists route source files (relative to the project root) needed before the first screen draws.
+ */
+export function splitCommonChunk(dist, firstScreen = FIRST_SCREEN) {
+  const plan = planSplit(dist, firstScreen);
+  if (!plan) return 'no common chunk: nothing to split';
+  const { dir, html, base, commonFile, keep, later, waiting } = plan;
+  if (!later.length) return 'every shared module is needed at start: nothing to split';
 
   const laterCode = later.map(write).join('\n') + '\n';
   const laterName = hashed('__later', laterCode);
-  const waiting = [];
-  for (const f of chunks.keys()) {
-    if (!chunks.get(f) || startFiles.has(f) || f === commonFile) continue;
-    if ([...closure(idsIn(f))].some((id) => laterIds.has(id))) waiting.push(base + f);
-  }
   const loader = [
     '(function(g){',
-    `var later=${JSON.stringify(base + laterName)},waits=${JSON.stringify(Object.fromEntries(waiting.map((p) => [p, 1])))};`,
+    `var later=${JSON.stringify(base + laterName)},waits=${JSON.stringify(Object.fromEntries(waiting.map((f) => [base + f, 1])))};`,
     "var key=(typeof __METRO_GLOBAL_PREFIX__=='string'?__METRO_GLOBAL_PREFIX__:'')+'__loadBundleAsync',wrapped;",
     // Metro's loader caches by path and forgets failures, so asking for `later` again is cheap and retries.
     'function wrap(load){return function(p){return waits[p]?Promise.all([load(later),load(p)]).then(function(){}):load(p)}}',
@@ -137,7 +148,7 @@ export function splitCommonChunk(dist, firstScreen = FIRST_SCREEN) {
   writeFileSync(path.join(dir, laterName), laterCode);
   writeFileSync(path.join(dir, commonName), commonCode);
   rmSync(path.join(dir, commonFile));
-  writeFileSync(indexFile, html.replace(commonFile, commonName));
+  writeFileSync(path.join(dist, 'index.html'), html.replace(commonFile, commonName));
   return `${keep.length} shared modules load at start, ${later.length} later (${waiting.length} chunks wait for them)`;
 }
 
