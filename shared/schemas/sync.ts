@@ -10,8 +10,11 @@ import { z } from 'zod';
  */
 
 const uuid = z.uuid();
-/** Milliseconds since the epoch on the device's clock (may be days off). */
-const deviceMs = z.number().int().nonnegative();
+/**
+ * Milliseconds since the epoch on the device's clock (may be days off). At most 8.64e15, the largest time a JavaScript
+ * Date holds (ECMA-262, Time Values and Time Range): a larger one cannot be stored as a time.
+ */
+const deviceMs = z.number().int().nonnegative().max(8.64e15);
 const finite = z.number().finite();
 /** pH meters in this trade read about −2…16; anything beyond is a typing error. Common practice, not a standard. */
 const pH = finite.min(-2).max(16);
