@@ -202,6 +202,7 @@ describe('fuzzed requests never cause a 5xx, and reach the handlers', () => {
       const fuzzed = schemaPlans(def, PER_ROUTE - nValid, SEED + 7919 * (routeIndex + 1));
       const problems: string[] = [];
       let signedInRefused = 0;
+      let stateChanged = true;
       let nv = 0;
       let ns = 0;
 
@@ -221,7 +222,11 @@ describe('fuzzed requests never cause a 5xx, and reach the handlers', () => {
         }
 
         if (endsSession) routeToken = (await fx.session(fx.people.manager.id)).accessToken;
-        if (fromValid && mode === 'real' && spec.prepare) await spec.prepare(ctx);
+        // Only a request that succeeded changed the record's state; until one does, the prepared state holds.
+        if (fromValid && mode === 'real' && spec.prepare && stateChanged) {
+          await spec.prepare(ctx);
+          stateChanged = false;
+        }
         const { url, foreign } = await pathFor(def, spec, mode, plan, i);
 
         let example: Example = {};
@@ -253,6 +258,7 @@ describe('fuzzed requests never cause a 5xx, and reach the handlers', () => {
           res = await req.set('content-type', 'application/json').send(JSON.stringify(example.body) ?? 'null');
         }
 
+        if (res.status < 300) stateChanged = true;
         row.sent++;
         row.statuses[res.status] = (row.statuses[res.status] ?? 0) + 1;
         const got = outcome(res);
@@ -265,8 +271,9 @@ describe('fuzzed requests never cause a 5xx, and reach the handlers', () => {
         else if (res.status >= 400 && typeof code !== 'string') problems.push(`error without a code: ${context()}`);
         if (got === 'noRoute') problems.push(`a declared route's path did not match: ${context()}`);
         if (foreign && res.status < 300 && !spec.foreignOk) problems.push(`lab B's record accepted under lab A: ${context()}`);
-        // The first request is the first valid example as is, with lab A's ids: it must get through.
-        if (i === 0 && got !== 'past') problems.push(`the valid example was refused: ${context()}`);
+        // A valid request as is, with lab A's ids, gets through (a rate limiter may hold it back; the first request
+        // is one of these, so a valid example that is not valid fails at once).
+        if (fromValid && asIs && mode === 'real' && got !== 'past' && got !== 'limited') problems.push(`a valid request was refused: ${context()}`);
         if (problems.length >= 5) break;
       }
       row.ms = Date.now() - started;
