@@ -11,10 +11,11 @@ import { z } from 'zod';
 
 const uuid = z.uuid();
 /**
- * Milliseconds since the epoch on the device's clock (may be days off). At most 8.64e15, the largest time a JavaScript
- * Date holds (ECMA-262, Time Values and Time Range): a larger one cannot be stored as a time.
+ * Milliseconds since the epoch on the device's clock (may be days off). At most the end of the year 9999: a Date
+ * after it is written with a six-digit year (ECMA-262, Date Time String Format), which PostgreSQL does not read.
  */
-const deviceMs = z.number().int().nonnegative().max(8.64e15);
+const DEVICE_MS_MAX = Date.UTC(9999, 11, 31, 23, 59, 59, 999);
+const deviceMs = z.number().int().nonnegative().max(DEVICE_MS_MAX);
 const finite = z.number().finite();
 /** pH meters in this trade read about −2…16; anything beyond is a typing error. Common practice, not a standard. */
 const pH = finite.min(-2).max(16);

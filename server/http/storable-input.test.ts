@@ -5,7 +5,8 @@ import { runComments } from '../../db/schema/desk';
 import { authFixture, type AuthFixture } from '../auth/test-fixture';
 import { closeTemplate } from '../testing/db';
 
-// The fuzz suite (tests/reliability) found these answering 500: PostgreSQL refuses U+0000 in text and jsonb.
+// The fuzz suite (tests/reliability) found these answering 500: PostgreSQL refuses U+0000 in text and jsonb, the
+// year 0000, and years after 9999 as a JavaScript Date writes them (+010000-…).
 let fx: AuthFixture;
 let token: string;
 const runId = crypto.randomUUID();
@@ -62,5 +63,37 @@ describe('text with the NUL character', () => {
     const res = await fx.api().get(`/api/labs/${fx.labA.id}/runs`).query({ q: 'acid\u0000' }).set('authorization', `Bearer ${token}`);
     expect(res.status, JSON.stringify(res.body)).toBe(400);
     expect(res.body.error.code).toBe('invalid_text');
+  });
+});
+
+describe('times at the edge of what is stored', () => {
+  const push = (recordedAt: number) =>
+    fx
+      .api()
+      .post('/api/sync/push')
+      .set('authorization', `Bearer ${token}`)
+      .send({
+        deviceId: crypto.randomUUID(),
+        sentAt: Date.now(),
+        changes: [{ id: crypto.randomUUID(), kind: 'run', seq: 1, recordedAt, payload: { labId: fx.labA.id, sampleName: 'edge time' } }],
+      });
+
+  it('a device time at the last moment of 9999 is stored; one after it is refused with 400', async () => {
+    const last = Date.parse('9999-12-31T23:59:59.999Z');
+    const ok = await push(last);
+    expect(ok.status, JSON.stringify(ok.body)).toBe(200);
+    expect(ok.body.results[0].outcome).toBe('accepted');
+    const after = await push(last + 1);
+    expect(after.status, JSON.stringify(after.body)).toBe(400);
+    expect(after.body.error.code).toBe('invalid_input');
+  });
+
+  it('a calibration time in the year 0001 is stored; 0000 is refused with 400', async () => {
+    const lot = (preparedAt: string) =>
+      fx.api().post(`/api/labs/${fx.labA.id}/titrant-lots`).set('authorization', `Bearer ${token}`).send({ identifier: `L-${preparedAt}`, nominalConcentrationM: 0.1, preparedAt });
+    expect((await lot('0001-01-01T00:00:00Z')).status).toBe(201);
+    const bad = await lot('0000-01-01T00:00:00Z');
+    expect(bad.status, JSON.stringify(bad.body)).toBe(400);
+    expect(bad.body.error.code).toBe('invalid_input');
   });
 });
