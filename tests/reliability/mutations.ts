@@ -155,5 +155,12 @@ export function applyMutation<T>(example: T, m: Mutation): T {
   return holder.root as T;
 }
 
+const shown = (v: unknown) => (JSON.stringify(v) ?? String(v)).slice(0, 80);
 export const describeMutation = (m: Mutation) =>
-  m.op === 'as-is' ? 'as is' : m.op === 'drop' ? `drop ${m.path.join('.')}` : m.op === 'add' ? `add ${[...m.path, m.key].join('.')}` : `${m.how} ${m.path.join('.')}`;
+  m.op === 'as-is'
+    ? 'as is'
+    : m.op === 'drop'
+      ? `drop ${m.path.join('.')}`
+      : m.op === 'add'
+        ? `add ${[...m.path, m.key].join('.')} = ${shown(m.value)}`
+        : `${m.how} ${m.path.join('.')} = ${shown(m.value)}`;
