@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { auditLog, outbox, readings, runs, syncChanges } from '../../db/schema';
 import { v7 } from 'uuid';
 import { authFixture, TEST_PASSWORD, type AuthFixture } from '../auth/test-fixture';
+import QUAM_A2 from '../../shared/engine/fixtures/standardize-quam-a2.json';
 import { demoRun, insertDemoRun, DEMO_SAMPLES } from '../demo/runs';
 import { startFakeS3 } from '../storage/fake-s3-server';
 import { S3Store } from '../storage/s3';
@@ -404,6 +405,8 @@ describe.each([
   });
 
   it('refuses an over-size file, a type it does not take, and content that is not what it claims', async () => {
+    const stored = async () => (await fx.api().get(`/api/runs/${runIdsA[6]}`).set('authorization', as('viewer'))).body.attachments.length as number;
+    const before = await stored();
     const big = Buffer.concat([PNG, Buffer.alloc(10 * 1024 * 1024 + 1)]);
     const tooBig = await upload('analyst', big, 'big.png', 'image/png');
     expect(tooBig.status).toBe(413);
@@ -415,17 +418,32 @@ describe.each([
     expect(pdfAsPng.body.error.code).toBe('type_mismatch');
     const viewer = await upload('viewer', PNG, 'p.png', 'image/png');
     expect(viewer.status).toBe(403);
-    const d = await fx.api().get(`/api/runs/${runIdsA[6]}`).set('authorization', as('viewer'));
-    expect(d.body.attachments.every((a: { mimeType: string }) => a.mimeType === 'image/png')).toBe(true);
+    // None of the refused files was stored.
+    expect(await stored()).toBe(before);
   });
 
   it('attaches a certificate to a calibration of the lab only', async () => {
-    const calId = crypto.randomUUID();
-    const up = await fx.api().post(`/api/labs/${fx.labA.id}/calibrations/${calId}/attachments`).set('authorization', as('manager')).attach('file', PDF, { filename: 'KHP certificate.pdf', contentType: 'application/pdf' });
+    // A standardisation of lab A and one of lab B, through the API (QUAM A2's KHP figures).
+    const standardisation = async (labId: string, who: 'manager' | 'managerB') => {
+      const lot = await fx.api().post(`/api/labs/${labId}/titrant-lots`).set('authorization', as(who)).send({ identifier: `NaOH-att-${who}-${crypto.randomUUID().slice(0, 8)}`, nominalConcentrationM: 0.1, preparedAt: fx.now().toISOString() });
+      expect(lot.status).toBe(201);
+      const std = await fx.api().post(`/api/labs/${labId}/titrant-lots/${lot.body.id}/standardisations`).set('authorization', as(who)).send(QUAM_A2);
+      expect(std.status).toBe(201);
+      return std.body.id as string;
+    };
+    const calId = await standardisation(fx.labA.id, 'manager');
+    const calB = await standardisation(fx.labB.id, 'managerB');
+    const attach = (labId: string, id: string) =>
+      fx.api().post(`/api/labs/${labId}/calibrations/${id}/attachments`).set('authorization', as('manager')).attach('file', PDF, { filename: 'KHP certificate.pdf', contentType: 'application/pdf' });
+    const up = await attach(fx.labA.id, calId);
     expect(up.status).toBe(201);
     const listed = await fx.api().get(`/api/labs/${fx.labA.id}/calibrations/${calId}/attachments`).set('authorization', as('viewer'));
     expect(listed.body.map((a: { originalName: string }) => a.originalName)).toEqual(['KHP certificate.pdf']);
-    const fromB = await fx.api().get(`/api/labs/${fx.labB.id}/calibrations/${calId}/attachments`).set('authorization', as('managerB'));
+    // No such calibration, or another lab's under this lab's path: not found, nothing stored.
+    expect((await attach(fx.labA.id, crypto.randomUUID())).status).toBe(404);
+    expect((await attach(fx.labA.id, calB)).status).toBe(404);
+    expect((await fx.api().get(`/api/labs/${fx.labA.id}/calibrations/${calB}/attachments`).set('authorization', as('viewer'))).status).toBe(404);
+    const fromB = await fx.api().get(`/api/labs/${fx.labB.id}/calibrations/${calB}/attachments`).set('authorization', as('managerB'));
     expect(fromB.body).toEqual([]);
   });
 });

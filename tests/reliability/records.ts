@@ -1,3 +1,4 @@
+import quamA2 from '../../shared/engine/fixtures/standardize-quam-a2.json';
 import { desc, eq } from 'drizzle-orm';
 import { outbox } from '../../db/schema';
 import { linkIn, type AuthFixture } from '../../server/auth/test-fixture';
@@ -15,19 +16,8 @@ export const PNG = Buffer.from(
 );
 export const PDF = Buffer.from('%PDF-1.4\n1 0 obj<<>>endobj\ntrailer<<>>\n%%EOF\n');
 
-// Eurachem/CITAC QUAM (3rd ed., 2012), example A2: standardising NaOH with KHP (as in server/api/calibrations.test.ts).
-export const QUAM_A2 = {
-  standard: 'KHP',
-  massG: 0.3888,
-  uMassG: 0.00013,
-  purity: 1.0,
-  uPurity: 0.00029,
-  molarMass: 204.2212,
-  uMolarMass: 0.0038,
-  equivalenceVolumeMl: 18.64,
-  uEquivalenceVolumeMl: 0.013,
-  uRepeatabilityRel: 0.0005,
-};
+// Eurachem/CITAC QUAM (3rd ed., 2012), example A2: standardising NaOH with KHP.
+export const QUAM_A2 = quamA2;
 
 /** Deliveries of about 5 mL in 250 s (server/api/calibrations.test.ts). */
 export const DELIVERIES = [

@@ -270,11 +270,9 @@ export const specs: Record<string, RouteSpec> = {
       }),
     ],
   },
-  // Attachments of a calibration take any id of the lab (calibration records live in another area's tables and
-  // are not looked up), so a lab-B calibration id under lab A's path is stored or listed under lab A.
   'POST /runs/:runId/attachments': { valid: [() => ({})], upload: true },
-  'POST /labs/:labId/calibrations/:calibrationId/attachments': { valid: [() => ({})], upload: true, foreignOk: 'calibration ids are not looked up' },
-  'GET /labs/:labId/calibrations/:calibrationId/attachments': { valid: [() => ({})], foreignOk: 'calibration ids are not looked up' },
+  'POST /labs/:labId/calibrations/:calibrationId/attachments': { valid: [() => ({})], upload: true },
+  'GET /labs/:labId/calibrations/:calibrationId/attachments': { valid: [() => ({})] },
   'GET /attachments/:attachmentId': { valid: [() => ({})] },
   'POST /sync/push': { valid: [(c) => ({ body: pushChanges(c) })] },
   'GET /sync/pull': { valid: [() => ({ query: { cursor: '0', limit: '50' } }), () => ({ query: { cursor: '100', limit: '200' } })] },
