@@ -10,6 +10,8 @@ export class MemoryDevice implements SyncStore {
   runs = new Map<string, RunRow>();
   readings = new Map<string, ReadingRow>();
   outbox: OutboxRow[] = [];
+  /** The outbox rows by seq: settling a 10,000-row push would otherwise search the outbox once per row. */
+  private outboxBySeq = new Map<number, OutboxRow>();
   /** Records pulled from the server, by entity and id. */
   pulled = new Map<string, Map<string, unknown>>();
   conflicts: (Settlement['meta'] & object)[number][] = [];
@@ -26,7 +28,9 @@ export class MemoryDevice implements SyncStore {
   }
 
   private queue(entity: OutboxRow['entity'], recordId: string, op: OutboxRow['op'], payload: unknown) {
-    this.outbox.push({ seq: ++this.seq, entity, recordId, op, payload: structuredClone(payload), createdWallMs: this.wall(), state: 'pending', attempts: 0, lastError: null });
+    const row: OutboxRow = { seq: ++this.seq, entity, recordId, op, payload: structuredClone(payload), createdWallMs: this.wall(), state: 'pending', attempts: 0, lastError: null };
+    this.outbox.push(row);
+    this.outboxBySeq.set(row.seq, row);
   }
 
   createRun(labId: string, label = 'KHP demo run'): RunRow {
@@ -70,7 +74,7 @@ export class MemoryDevice implements SyncStore {
   }
   async settle(list: Settlement[]) {
     for (const s of list) {
-      const row = this.outbox.find((o) => o.seq === s.seq)!;
+      const row = this.outboxBySeq.get(s.seq)!;
       row.state = s.state;
       row.lastError = s.reason ?? null;
       for (const m of s.meta ?? []) {
