@@ -5,7 +5,7 @@ import express, { type Express } from 'express';
 import helmet from 'helmet';
 import type { Database } from '../db/client';
 import { apiRouter } from './api';
-import type { AuthOptions } from './auth/context';
+import { createServerContext, type AuthOptions, type ServerContext } from './auth/context';
 import { errorHandler, unknownApiRoute } from './http/errors';
 
 export interface AppDeps {
@@ -53,7 +53,9 @@ export function createApp(deps: AppDeps): Express {
   );
   app.use(compression());
 
-  app.use('/api', express.json({ limit: '2mb' }), apiRouter({ ...deps, log }), unknownApiRoute);
+  const context = createServerContext({ ...deps, log });
+  app.locals.context = context;
+  app.use('/api', express.json({ limit: '2mb' }), apiRouter({ ...deps, log }, context), unknownApiRoute);
 
   if (deps.webDir && existsSync(deps.webDir)) {
     const webDir = deps.webDir;
@@ -86,4 +88,9 @@ export function createApp(deps: AppDeps): Express {
   });
   app.use(errorHandler(log));
   return app;
+}
+
+/** The context the app's routes share (its caches included), for tests and benchmarks that look inside. */
+export function serverContextOf(app: Express): ServerContext {
+  return app.locals.context as ServerContext;
 }

@@ -40,7 +40,7 @@ import { mailManagersOnSubmission } from './runs-review';
 export interface SyncCaller {
   userId: string;
   roleIn(labId: string): Role | undefined;
-  labs: { labId: string }[];
+  labs: readonly { labId: string }[];
 }
 
 export interface SyncDeps {
