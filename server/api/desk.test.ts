@@ -346,10 +346,15 @@ describe('import', () => {
     const d = await fx.api().get(`/api/runs/${ok.body.runId}`).set('authorization', as('viewer'));
     expect(d.body.run).toMatchObject({ sampleName: 'Imported benzoic acid', status: 'finished', titrantLot: 'NaOH-IMP-1', readingCount: 30 });
     expect(d.body.readings[3]).toMatchObject({ timeS: 30, pH: 3.3 });
-    // Phones pull imported runs: the run and each reading are in sync's change log.
+    // Phones pull imported runs: the run is in sync's change log, each reading carries its place after the run's.
     const logged = await fx.database.db.select().from(syncChanges).where(eq(syncChanges.runId, ok.body.runId));
     expect(logged.filter((c) => c.entity === 'run').length).toBe(1);
-    expect(logged.filter((c) => c.entity === 'reading').length).toBe(30);
+    const placed = await fx.database.db.select({ seq: readings.seq }).from(readings).where(eq(readings.runId, ok.body.runId));
+    expect(placed.length).toBe(30);
+    for (const r of placed) expect(r.seq).toBeGreaterThan(logged.find((c) => c.entity === 'run')!.seq);
+    const pulled = await fx.api().get('/api/sync/pull').query({ cursor: Math.min(...logged.map((c) => c.seq)) - 1, limit: 5000 }).set('authorization', as('viewer'));
+    const mine = pulled.body.changes.filter((c: { entity: string; record: { runId?: string; id: string } }) => (c.record.runId ?? c.record.id) === ok.body.runId);
+    expect(mine.map((c: { entity: string }) => c.entity)).toEqual(['run', 'checkpoint', ...Array(30).fill('reading')]);
   });
 
   it('maps a volume column through the drip rate and reads m:ss times', async () => {

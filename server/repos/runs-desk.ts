@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, ilike, inArray, or, sql, type SQL } from 'drizzle-orm';
+import { and, asc, desc, eq, ilike, or, sql, type SQL } from 'drizzle-orm';
 import { auditLog, checkpoints, labs, memberships, readings, runEvents, runs, users } from '../../db/schema';
 import { runComments, runReviewEvents, runRevisions } from '../../db/schema/desk';
 import type { RunListQuery } from '../../shared/schemas/desk';
@@ -245,15 +245,4 @@ export async function managersOf(db: Executor, labId: string) {
 export async function labSettings(db: Executor, labId: string): Promise<Record<string, unknown> | null> {
   const [row] = await db.select({ settings: labs.settings }).from(labs).where(eq(labs.id, labId));
   return (row?.settings as Record<string, unknown>) ?? null;
-}
-
-/** Of these runs, those whose current (highest) revision is approved and locked: sync refuses changes to them. */
-export async function lockedRunIds(db: Executor, runIds: string[]): Promise<Set<string>> {
-  if (!runIds.length) return new Set();
-  const rows = await db
-    .selectDistinctOn([runRevisions.runId], { runId: runRevisions.runId, lockedAt: runRevisions.lockedAt })
-    .from(runRevisions)
-    .where(inArray(runRevisions.runId, runIds))
-    .orderBy(runRevisions.runId, desc(runRevisions.revision));
-  return new Set(rows.filter((r) => r.lockedAt).map((r) => r.runId));
 }
