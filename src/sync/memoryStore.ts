@@ -12,6 +12,8 @@ export class MemoryDevice implements SyncStore {
   outbox: OutboxRow[] = [];
   /** The outbox rows by seq: settling a 10,000-row push would otherwise search the outbox once per row. */
   private outboxBySeq = new Map<number, OutboxRow>();
+  /** Each row's payload as JSON text, as the device's SQLite outbox keeps it (payload_json). */
+  private payloadJson = new Map<number, string>();
   /** Records pulled from the server, by entity and id. */
   pulled = new Map<string, Map<string, unknown>>();
   conflicts: (Settlement['meta'] & object)[number][] = [];
@@ -31,6 +33,7 @@ export class MemoryDevice implements SyncStore {
     const row: OutboxRow = { seq: ++this.seq, entity, recordId, op, payload: structuredClone(payload), createdWallMs: this.wall(), state: 'pending', attempts: 0, lastError: null };
     this.outbox.push(row);
     this.outboxBySeq.set(row.seq, row);
+    this.payloadJson.set(row.seq, JSON.stringify(payload));
   }
 
   createRun(labId: string, label = 'KHP demo run'): RunRow {
@@ -67,7 +70,13 @@ export class MemoryDevice implements SyncStore {
   // ---------- SyncStore ----------
 
   async pendingOutbox(limit: number) {
-    return this.outbox.filter((o) => o.state === 'pending' || o.state === 'sent').slice(0, limit).map((o) => structuredClone(o));
+    const out: OutboxRow[] = [];
+    for (const o of this.outbox) {
+      if (out.length >= limit) break;
+      // Fresh copies with the payload decoded from its JSON text, as the SQLite store hands them out.
+      if (o.state === 'pending' || o.state === 'sent') out.push({ ...o, payload: JSON.parse(this.payloadJson.get(o.seq)!) });
+    }
+    return out;
   }
   async runLab(runId: string) {
     return this.runs.get(runId)?.labId ?? null;
