@@ -1,5 +1,4 @@
 import { existsSync } from 'node:fs';
-import path from 'node:path';
 import compression from 'compression';
 import express, { type Express } from 'express';
 import helmet from 'helmet';
@@ -78,7 +77,8 @@ export function createApp(deps: AppDeps): Express {
     app.get('/*splat', (req, res, next) => {
       if (req.accepts('html') && !/\.[a-z0-9]+$/i.test(req.path)) {
         res.setHeader('Cache-Control', 'no-cache');
-        res.sendFile(path.join(webDir, 'index.html'));
+        // With root, only the part below it is checked for dot-segments: a web export under a hidden folder still serves.
+        res.sendFile('index.html', { root: webDir });
       } else next();
     });
   }
