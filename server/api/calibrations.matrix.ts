@@ -50,7 +50,8 @@ async function electrodeCal(fx: AuthFixture, labId: string) {
     limits: {}, accepted: true, result: {}, performedAt: new Date(), expiresAt: later(),
   });
 }
-async function standardisation(fx: AuthFixture, labId: string) {
+/** A standardisation of the lab (also the calibration record the desk matrix attaches files to). */
+export async function standardisation(fx: AuthFixture, labId: string) {
   const l = await lot(fx, labId);
   return repo.insertStandardisation(fx.database.db, {
     labId, lotId: l.id, standard: 'KHP', massG: 0.4, purity: 1, molarMassGPerMol: 204.22, equivalenceVolumeMl: 19.5,

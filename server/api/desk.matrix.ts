@@ -7,6 +7,7 @@ import path from 'node:path';
 import { readings, runs } from '../../db/schema';
 import { attachments, runRevisions } from '../../db/schema/desk';
 import { TEST_PASSWORD, type AuthFixture } from '../auth/test-fixture';
+import { standardisation } from './calibrations.matrix';
 import { LocalDiskStore, storageFor, useStorage } from '../storage';
 
 type Row = { signedOut: number; analyst: number; manager: number; viewer: number };
@@ -95,12 +96,12 @@ export const deskMatrix: Record<string, Entry> = {
   },
   'POST /runs/:runId/attachments': { request: (fx, lab) => runParam(fx, lab), own: UPLOAD, other: OTHER },
   'POST /labs/:labId/calibrations/:calibrationId/attachments': {
-    request: (_fx, lab) => ({ params: { labId: lab.id, calibrationId: randomUUID() } }),
+    request: async (fx, lab) => ({ params: { labId: lab.id, calibrationId: (await standardisation(fx, lab.id)).id } }),
     own: UPLOAD,
     other: OTHER,
   },
   'GET /labs/:labId/calibrations/:calibrationId/attachments': {
-    request: (_fx, lab) => ({ params: { labId: lab.id, calibrationId: randomUUID() } }),
+    request: async (fx, lab) => ({ params: { labId: lab.id, calibrationId: (await standardisation(fx, lab.id)).id } }),
     own: READ,
     other: OTHER,
   },
