@@ -255,6 +255,14 @@ describe('bench timing and storage', () => {
     await page.getByTestId('entry-idle').waitFor();
     expect(await page.getByTestId('reading-row-3').innerText()).toContain('-123.4 mV');
 
+    // From the keyboard: Enter on the focused Mark target marks too; a mark tapped by mistake can be discarded.
+    await page.getByTestId('tap-reading').focus();
+    await page.keyboard.press('Enter');
+    await page.getByTestId('active-mark-time').waitFor();
+    await page.locator('[data-testid^="mark-saving-"]').waitFor({ state: 'detached' });
+    await page.getByTestId('discard-mark').click();
+    await page.getByTestId('entry-idle').waitFor();
+
     // A correction keeps the original and needs a reason.
     await page.getByTestId('reading-row-1').click();
     await page.getByTestId('correction-value').fill('2.97');

@@ -109,7 +109,7 @@ export const EntryPanel = memo(function EntryPanel({ pending, hasElectrode, onRe
     <View style={styles.wrap} testID="entry-panel">
       <ChipRow open={open} activeId={active?.id ?? null} onChoose={choose} />
       <EntryHead kind={active?.kind ?? null} timeS={active?.timeS ?? null} readingMode={readingMode} onMode={onMode} />
-      <EntryDisplay text={text} unit={rule.unit} idle={!active} error={error} mvWithoutCalibration={mode === 'mV' && !hasElectrode} />
+      <EntryDisplay text={text} unit={rule.unit} error={error} mvWithoutCalibration={mode === 'mV' && !hasElectrode} />
       <Keypad onKey={onKey} onConfirm={confirm} confirmLabel={`Save ${rule.unit}`} confirmDisabled={!active} allowSign={rule.negative} />
       <DiscardButton disabled={!active} onPress={onDiscardActive} />
     </View>
@@ -153,15 +153,10 @@ const EntryHead = memo(function EntryHead({ kind, timeS, readingMode, onMode }: 
         <Text variant="label" tone="muted">
           {kind ? `${kind === 'checkpoint' ? 'Burette reading' : 'Meter reading'} for the mark at` : 'No mark waiting'}
         </Text>
-        {timeS !== null ? (
-          <Text variant="heading" numeric testID="active-mark-time">
-            {formatClock(timeS)}
-          </Text>
-        ) : (
-          <Text variant="heading" numeric tone="muted">
-            --:--.-
-          </Text>
-        )}
+        {/* One element either way (a tap updates it rather than swapping it). */}
+        <Text variant="heading" numeric tone={timeS === null ? 'muted' : 'ink'} testID={timeS === null ? undefined : 'active-mark-time'}>
+          {timeS === null ? '--:--.-' : formatClock(timeS)}
+        </Text>
       </View>
       <ModeSwitch hidden={kind === 'checkpoint'} value={readingMode} onChange={onMode} />
     </View>
@@ -177,11 +172,11 @@ const ModeSwitch = memo(function ModeSwitch({ hidden, value, onChange }: { hidde
   );
 });
 
-const EntryDisplay = memo(function EntryDisplay({ text, unit, idle, error, mvWithoutCalibration }: { text: string; unit: string; idle: boolean; error: string | null; mvWithoutCalibration: boolean }) {
+const EntryDisplay = memo(function EntryDisplay({ text, unit, error, mvWithoutCalibration }: { text: string; unit: string; error: string | null; mvWithoutCalibration: boolean }) {
   return (
     <>
       <View style={[styles.display, error ? styles.displayError : null]} testID="entry-display" accessibilityLabel={`Typed ${text || 'nothing'} ${unit}`}>
-        <Text style={[styles.displayText, idle && styles.displayIdle]} numeric>
+        <Text style={styles.displayText} numeric>
           {text || ' '}
         </Text>
         <Text variant="heading" tone="muted">
@@ -266,5 +261,4 @@ const styles = StyleSheet.create({
   },
   displayError: { borderColor: colors.danger },
   displayText: { fontSize: 48, lineHeight: 64, fontFamily: fonts.bold, color: colors.ink },
-  displayIdle: { color: colors.inkFaint },
 });

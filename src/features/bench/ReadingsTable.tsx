@@ -31,12 +31,7 @@ export const ReadingsTable = memo(function ReadingsTable({ readings, checkpoints
   const total = readings.length + checkpoints.length;
   return (
     <View style={styles.table} testID="readings-table" accessibilityRole="list" aria-label="Readings">
-      <View style={[styles.row, styles.headRow]}>
-        <Text variant="label" style={styles.cN}>#</Text>
-        <Text variant="label" style={styles.c}>Time</Text>
-        <Text variant="label" style={styles.c} align="right">mL</Text>
-        <Text variant="label" style={styles.c} align="right">pH</Text>
-      </View>
+      <TableHead />
       {unsaved.length ? <UnsavedRows unsaved={unsaved} readingsBefore={readings.length} checkpointsBefore={checkpoints.length} volumeAt={volumeAt} /> : null}
       <StoredRows readings={readings} checkpoints={checkpoints} volumeAt={volumeAt} limit={limit} onCorrectReading={onCorrectReading} onCorrectCheckpoint={onCorrectCheckpoint} />
       {total === 0 && !unsaved.length ? (
@@ -44,10 +39,28 @@ export const ReadingsTable = memo(function ReadingsTable({ readings, checkpoints
           No readings yet.
         </Text>
       ) : null}
-      <Text variant="caption" tone="muted" style={styles.emptyText}>
-        * corrected: the original is kept. Tap a row to correct or delete it (with a reason).
-      </Text>
+      <TableNote />
     </View>
+  );
+});
+
+// The fixed parts, memoised: a value being saved re-renders the table around them, not them.
+const TableHead = memo(function TableHead() {
+  return (
+    <View style={[styles.row, styles.headRow]}>
+      <Text variant="label" style={styles.cN}>#</Text>
+      <Text variant="label" style={styles.c}>Time</Text>
+      <Text variant="label" style={styles.c} align="right">mL</Text>
+      <Text variant="label" style={styles.c} align="right">pH</Text>
+    </View>
+  );
+});
+
+const TableNote = memo(function TableNote() {
+  return (
+    <Text variant="caption" tone="muted" style={styles.emptyText}>
+      * corrected: the original is kept. Tap a row to correct or delete it (with a reason).
+    </Text>
   );
 });
 

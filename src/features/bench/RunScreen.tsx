@@ -24,6 +24,7 @@ import { PlanCard } from './PlanCard';
 import { ReadingsTable, type ReadingsTableProps } from './ReadingsTable';
 import { RunReview } from './RunReview';
 import { SafetyNote } from './SafetyNote';
+import type { Refill } from './document';
 import type { RunSetup } from './setup';
 import {
   readingValue,
@@ -34,6 +35,7 @@ import {
   useOpenMarks,
   usePlan,
   useReadings,
+  type SetupResult,
   useRunDocument,
   useRunLabel,
   useRunPresence,
@@ -86,8 +88,8 @@ function RunLoaded({ runId }: { runId: string }) {
 }
 
 /**
- * The recording screen. It subscribes to what changes on a commit (the stored readings, the clock); a tap or a
- * typed value re-renders only the entry panel and the rows being saved, which subscribe to those slices themselves.
+ * The recording screen. It subscribes only to what changes its frame (the clock, the setup, checkpoints); a tap, a
+ * typed value or a stored reading re-renders only the parts that show them, which subscribe to those slices.
  */
 const RunBench = memo(function RunBench({ run, setup }: { run: BenchRun; setup: RunSetup }) {
   const { runStore: rs, actions } = run;
@@ -99,14 +101,8 @@ const RunBench = memo(function RunBench({ run, setup }: { run: BenchRun; setup: 
   const setupResult = useRunSetup(rs);
   const plan = usePlan(setupResult);
   const { refills, deliveryMap } = useDelivery(rs, setupResult);
-  const readings = useReadings(rs);
   const label = useRunLabel(rs);
   const writeError = useWriteError(rs);
-  // The curve and the analysis follow a moment behind the taps: React renders them after the urgent update (the
-  // stored row), and the analysis runs off the main thread, so a long run never delays what the finger just did.
-  const deferredReadings = useDeferredValue(readings);
-  const built = useRunDocument(rs, setupResult, refills);
-  const analysis = useLiveAnalysis(built?.doc ?? null, live);
   const localState = run.local.status === 'ready' ? run.local : null;
 
   const { mark, enterReading, correctReading, correctCheckpoint } = actions;
@@ -138,8 +134,7 @@ const RunBench = memo(function RunBench({ run, setup }: { run: BenchRun; setup: 
       </View>
     ) : null;
 
-  const estimates = live ? <LiveEstimates count={readings.length} analysis={analysis} /> : null;
-  const chart = <LiveChart readings={deferredReadings} deliveryMap={deliveryMap} plan={plan} result={analysis?.result ?? null} height={wide ? 320 : 240} />;
+  const results = <LiveResults rs={rs} setup={setupResult} refills={refills} deliveryMap={deliveryMap} plan={plan} live={live} showChart={status !== 'ready'} height={wide ? 320 : 240} />;
   const table = <LiveTable rs={rs} volumeAt={volumeAt} onCorrectReading={onCorrectReading} onCorrectCheckpoint={correctCheckpoint} />;
   const errorBar = writeError ? (
     <Card tone="danger" testID="write-error">
@@ -166,8 +161,8 @@ const RunBench = memo(function RunBench({ run, setup }: { run: BenchRun; setup: 
             {tapArea}
           </View>
           <View style={styles.right}>
-            {estimates}
-            {status === 'ready' ? before : chart}
+            {results}
+            {before}
             {status !== 'ready' ? table : null}
           </View>
         </View>
@@ -175,12 +170,30 @@ const RunBench = memo(function RunBench({ run, setup }: { run: BenchRun; setup: 
         <>
           {controls}
           {tapArea}
-          {estimates}
-          {status === 'ready' ? before : chart}
+          {results}
+          {before}
           {status !== 'ready' ? table : null}
         </>
       )}
     </Screen>
+  );
+});
+
+/**
+ * The live estimates and the curve (adjacent in both layouts). They follow the stored readings a moment behind the
+ * taps: React renders them after the urgent update, and the analysis runs off the main thread, so a long run never
+ * delays what the finger just did.
+ */
+const LiveResults = memo(function LiveResults({ rs, setup, refills, deliveryMap, plan, live, showChart, height }: { rs: RunStore; setup: SetupResult; refills: Refill[]; deliveryMap: DeliveryMap | null; plan: PlanResult | null; live: boolean; showChart: boolean; height: number }) {
+  const readings = useReadings(rs);
+  const deferredReadings = useDeferredValue(readings);
+  const built = useRunDocument(rs, setup, refills);
+  const analysis = useLiveAnalysis(built?.doc ?? null, live);
+  return (
+    <>
+      {live ? <LiveEstimates count={readings.length} analysis={analysis} /> : null}
+      {showChart ? <LiveChart readings={deferredReadings} deliveryMap={deliveryMap} plan={plan} result={analysis?.result ?? null} height={height} /> : null}
+    </>
   );
 });
 

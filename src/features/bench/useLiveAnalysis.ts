@@ -2,7 +2,7 @@
 // (analyser.web.ts), always on the newest document and one run at a time. Where it has to share the main thread it
 // runs after the screen has shown the new reading, and never more often than its own cost allows (about 5 % of the
 // main thread), so a long run stays responsive.
-import { useEffect, useRef, useState } from 'react';
+import { startTransition, useEffect, useRef, useState } from 'react';
 import type { RunDocumentInput } from '../../../shared/schemas/run-document';
 import { createAnalyser, type Analyser } from './analyser';
 import type { Analysis } from './liveAnalysis';
@@ -56,7 +56,8 @@ export function useLiveAnalysis(doc: RunDocumentInput | null, enabled: boolean):
           if (!live.current) return;
           const pace = a.offThread ? PACE.worker : PACE.mainThread;
           nextAllowed.current = performance.now() + Math.max(pace.minGapMs, pace.share * ms);
-          setAnalysis(result);
+          // A transition: the chart and estimates it redraws give way to a tap that comes meanwhile.
+          startTransition(() => setAnalysis(result));
           if (docRef.current !== d) schedule(); // readings came in meanwhile
         });
       }, wait);
