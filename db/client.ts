@@ -23,6 +23,12 @@ export interface Database {
   /** Raw SQL escape hatch for LISTEN/NOTIFY and maintenance; parameters as $1, $2... */
   query<T = Record<string, unknown>>(sql: string, params?: unknown[]): Promise<T[]>;
   close(): Promise<void>;
+  /**
+   * LISTEN on a channel of fixed name: `onMessage` gets each payload, after the sending transaction committed.
+   * `onLost` is called if the listening connection drops (notifications may then have been missed; listen again).
+   * PostgreSQL: one dedicated connection per database, outside the pool, ended by `close()`.
+   */
+  listen(channel: string, onMessage: (payload: string) => void, onLost?: () => void): Promise<() => Promise<void>>;
   /** PGlite only: the underlying instance (tests clone it). */
   pglite?: PGlite;
   /** PostgreSQL only: the connection pool. */
@@ -40,12 +46,17 @@ export async function openDatabase(opts: OpenOptions): Promise<Database> {
     const pool = new pg.Pool({ connectionString: opts.url, max: opts.max ?? 10 });
     const db = drizzlePg(pool, { schema }) as unknown as Db;
     await migratePg(drizzlePg(pool), { migrationsFolder });
+    const listener = new PgListener(opts.url);
     return {
       db,
       kind: 'postgres',
       pool,
       query: async (text, params) => (await pool.query(text, params as unknown[])).rows,
-      close: () => pool.end(),
+      listen: (channel, onMessage, onLost) => listener.listen(channel, onMessage, onLost),
+      close: async () => {
+        await listener.close();
+        await pool.end();
+      },
     };
   }
   if (opts.dataDir) mkdirSync(opts.dataDir, { recursive: true });
@@ -63,6 +74,85 @@ export function wrapPglite(client: PGlite): Database {
     kind: 'pglite',
     pglite: client,
     query: async (text, params) => (await client.query(text, params as unknown[])).rows as never,
+    // One instance, no connection to lose: notifications arrive with the result of the committing statement.
+    listen: async (channel, onMessage) => {
+      const unlisten = await client.listen(channel, (payload) => onMessage(payload ?? ''));
+      return () => unlisten();
+    },
     close: () => client.close(),
   };
+}
+
+const CHANNEL = /^[a-z_][a-z0-9_]*$/;
+
+/** LISTEN for every channel of one PostgreSQL database on one connection of its own (never a pooled one). */
+class PgListener {
+  private client: Promise<pg.Client> | null = null;
+  private readonly subs = new Map<string, Set<{ onMessage: (payload: string) => void; onLost?: () => void }>>();
+  private closed = false;
+
+  constructor(private readonly url: string) {}
+
+  async listen(channel: string, onMessage: (payload: string) => void, onLost?: () => void): Promise<() => Promise<void>> {
+    if (!CHANNEL.test(channel)) throw new Error(`Not a channel name: ${channel}`);
+    if (this.closed) throw new Error('The database is closed.');
+    const sub = { onMessage, onLost };
+    const client = await this.connect();
+    let set = this.subs.get(channel);
+    if (!set) {
+      this.subs.set(channel, (set = new Set()));
+      try {
+        await client.query(`LISTEN ${channel}`);
+      } catch (err) {
+        this.subs.delete(channel);
+        throw err;
+      }
+    }
+    set.add(sub);
+    return async () => {
+      set.delete(sub);
+      if (set.size || this.subs.get(channel) !== set) return;
+      this.subs.delete(channel);
+      const c = await this.client?.catch(() => null);
+      if (c && !this.closed) await c.query(`UNLISTEN ${channel}`).catch(() => undefined);
+    };
+  }
+
+  private connect(): Promise<pg.Client> {
+    if (this.client) return this.client;
+    const client = new pg.Client({ connectionString: this.url });
+    const lost = () => {
+      if (this.client !== attempt) return;
+      this.client = null;
+      // Every subscription ends with the connection; subscribers listen again when they want to.
+      const all = [...this.subs.values()].flatMap((s) => [...s]);
+      this.subs.clear();
+      client.removeAllListeners('notification');
+      void client.end().catch(() => undefined);
+      for (const s of all) s.onLost?.();
+    };
+    client.on('notification', (m) => {
+      for (const s of this.subs.get(m.channel) ?? []) s.onMessage(m.payload ?? '');
+    });
+    client.on('error', lost);
+    client.on('end', lost);
+    const attempt: Promise<pg.Client> = client.connect().then(
+      () => client,
+      (err) => {
+        if (this.client === attempt) this.client = null;
+        throw err;
+      },
+    );
+    this.client = attempt;
+    return attempt;
+  }
+
+  async close(): Promise<void> {
+    this.closed = true;
+    const c = this.client;
+    this.client = null;
+    this.subs.clear();
+    const client = await c?.catch(() => null);
+    if (client) await client.end().catch(() => undefined);
+  }
 }

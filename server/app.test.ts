@@ -33,6 +33,13 @@ describe('foundation API', () => {
     expect(JSON.stringify(res.body)).not.toMatch(/at .*\.ts:\d+/);
   });
 
+  it('the development mailbox (it holds reset links) is served outside production only', async () => {
+    await request(app).get('/api/dev/mailbox').expect(200);
+    const production = createApp({ database, log: () => {}, auth: { production: true, jwtSecret: 'production-test-secret-of-sufficient-length-01' } });
+    const res = await request(production).get('/api/dev/mailbox').expect(404);
+    expect(apiErrorSchema.parse(res.body).error.code).toBe('no_such_route');
+  });
+
   it('answers an unknown API route with 404 in the error shape', async () => {
     const res = await request(app).get('/api/no-such-thing').expect(404);
     expect(apiErrorSchema.parse(res.body).error.code).toBe('no_such_route');

@@ -1,11 +1,10 @@
 import { existsSync } from 'node:fs';
-import path from 'node:path';
 import compression from 'compression';
 import express, { type Express } from 'express';
 import helmet from 'helmet';
 import type { Database } from '../db/client';
 import { apiRouter } from './api';
-import type { AuthOptions } from './auth/context';
+import { createServerContext, type AuthOptions, type ServerContext } from './auth/context';
 import { errorHandler, unknownApiRoute } from './http/errors';
 
 export interface AppDeps {
@@ -53,7 +52,9 @@ export function createApp(deps: AppDeps): Express {
   );
   app.use(compression());
 
-  app.use('/api', express.json({ limit: '2mb' }), apiRouter({ ...deps, log }), unknownApiRoute);
+  const context = createServerContext({ ...deps, log });
+  app.locals.context = context;
+  app.use('/api', express.json({ limit: '2mb' }), apiRouter({ ...deps, log }, context), unknownApiRoute);
 
   if (deps.webDir && existsSync(deps.webDir)) {
     const webDir = deps.webDir;
@@ -76,7 +77,8 @@ export function createApp(deps: AppDeps): Express {
     app.get('/*splat', (req, res, next) => {
       if (req.accepts('html') && !/\.[a-z0-9]+$/i.test(req.path)) {
         res.setHeader('Cache-Control', 'no-cache');
-        res.sendFile(path.join(webDir, 'index.html'));
+        // With root, only the part below it is checked for dot-segments: a web export under a hidden folder still serves.
+        res.sendFile('index.html', { root: webDir });
       } else next();
     });
   }
@@ -86,4 +88,9 @@ export function createApp(deps: AppDeps): Express {
   });
   app.use(errorHandler(log));
   return app;
+}
+
+/** The context the app's routes share (its caches included), for tests and benchmarks that look inside. */
+export function serverContextOf(app: Express): ServerContext {
+  return app.locals.context as ServerContext;
 }

@@ -10,7 +10,7 @@ import path from 'node:path';
 const root = path.resolve(path.dirname(new URL(import.meta.url).pathname), '..');
 const dist = path.join(root, 'dist');
 const stampFile = path.join(dist, '.halfmark-build');
-const inputs = ['app', 'src', 'shared', 'assets', 'app.json', 'metro.config.js', 'package-lock.json', 'server/build-web.mjs', 'server/web-offline.mjs'];
+const inputs = ['app', 'src', 'shared', 'assets', 'app.json', 'metro.config.js', 'package-lock.json', 'server/build-web.mjs', 'server/web-chunks.mjs', 'server/web-offline.mjs'];
 
 function* files(p) {
   const full = path.join(root, p);
@@ -70,8 +70,17 @@ if (process.argv.includes('--if-stale') && existsSync(stampFile) && readFileSync
 
 console.log('Building the web export into dist/ (the first build takes a minute or two)…');
 const env = { ...process.env, EXPO_OFFLINE: '1', EXPO_NO_TELEMETRY: '1', EXPO_NO_DEPENDENCY_VALIDATION: '1', CI: '1' };
-const r = spawnSync('npx', ['expo', 'export', '-p', 'web', '--output-dir', 'dist'], { stdio: 'inherit', env, cwd: root });
+// Source maps only tell web-chunks.mjs which chunk holds which route; they are removed before anything is served.
+const r = spawnSync('npx', ['expo', 'export', '-p', 'web', '--output-dir', 'dist', '--source-maps'], { stdio: 'inherit', env, cwd: root });
 if (r.status !== 0) process.exit(r.status ?? 1);
+// Shared modules that only later screens need leave the start-up download (see web-chunks.mjs).
+const chunks = await import('./web-chunks.mjs');
+try {
+  console.log(`Start-up chunk: ${chunks.splitCommonChunk(dist)}.`);
+} catch (err) {
+  console.warn(`Start-up chunk left as exported (it could not be split: ${err instanceof Error ? err.message : err}).`);
+}
+chunks.dropSourceMaps(dist);
 // Manifest and service worker (offline opening, install to the home screen).
 await (await import('./web-offline.mjs')).addOfflineSupport(root, dist);
 

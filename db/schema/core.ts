@@ -1,5 +1,6 @@
 import { sql } from 'drizzle-orm';
 import {
+  bigint,
   boolean,
   doublePrecision,
   index,
@@ -56,6 +57,11 @@ export const memberships = pgTable(
   (t) => [primaryKey({ columns: [t.labId, t.userId] }), index('memberships_user_idx').on(t.userId)],
 );
 
+/** A number inside a jsonb column (path as a Postgres text array), null when absent or not a number. */
+function jsonNumber(column: 'result', path: string) {
+  return sql.raw(`case when jsonb_typeof(${column} #> '{${path}}') = 'number' then (${column} #>> '{${path}}')::float8 end`);
+}
+
 /**
  * A titration run. The id is made on the device (it is the idempotency key for sync).
  * `setup` holds the run's plan as recorded (sample, titrant lot, calibrations chosen); `result` the last analysis.
@@ -82,8 +88,26 @@ export const runs = pgTable(
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
     updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
     payloadHash: text('payload_hash'),
+    /*
+     * The runs table's headline numbers, kept current by PostgreSQL from `result` and `setup` on every write (stored
+     * generated columns), so the list filters, sorts and pages without reading any run's analysis. A value of the
+     * wrong JSON type gives null, never a failed write.
+     */
+    equivalenceVolumeMl: doublePrecision('equivalence_volume_ml').generatedAlwaysAs(jsonNumber('result', 'equivalencePoints,0,volumeMl')),
+    pKa: doublePrecision('pka').generatedAlwaysAs(jsonNumber('result', 'pKa,0')),
+    molarMassGPerMol: doublePrecision('molar_mass_g_per_mol').generatedAlwaysAs(jsonNumber('result', 'molarMassGPerMol')),
+    concentrationM: doublePrecision('concentration_m').generatedAlwaysAs(jsonNumber('result', 'analyteConcentrationM')),
+    // Cut to 200 characters (what the lot filter accepts): a long label sent from a device must never make the row
+    // too big for its index and fail the write.
+    titrantLot: text('titrant_lot').generatedAlwaysAs(sql`left(coalesce(setup #>> '{titrant,lotLabel}', setup #>> '{titrant,lotId}'), 200)`),
   },
-  (t) => [index('runs_lab_created_idx').on(t.labId, t.createdAt), index('runs_lab_status_idx').on(t.labId, t.status)],
+  (t) => [
+    index('runs_lab_created_idx').on(t.labId, t.createdAt),
+    index('runs_lab_status_idx').on(t.labId, t.status),
+    index('runs_lab_ve_idx').on(t.labId, t.equivalenceVolumeMl),
+    index('runs_lab_pka_idx').on(t.labId, t.pKa),
+    index('runs_lab_lot_idx').on(t.labId, t.titrantLot),
+  ],
 );
 
 /**
@@ -110,8 +134,14 @@ export const readings = pgTable(
     deviceRecordedAt: timestamp('device_recorded_at', { withTimezone: true }),
     receivedAt: timestamp('received_at', { withTimezone: true }).notNull().defaultNow(),
     payloadHash: text('payload_hash'),
+    /**
+     * The reading's place in the change log pulls read (taken from sync_changes' sequence under the sync lock, see
+     * server/repos/sync.ts): a reading is logged by this column, not by a row of its own in sync_changes, which
+     * halves what storing a pushed reading costs. Null: never offered to pulls (demo data seeded on the server).
+     */
+    seq: bigint('seq', { mode: 'number' }),
   },
-  (t) => [index('readings_run_time_idx').on(t.runId, t.timeS)],
+  (t) => [index('readings_run_time_idx').on(t.runId, t.timeS), index('readings_lab_seq_idx').on(t.labId, t.seq).where(sql`${t.seq} is not null`)],
 );
 
 /** A burette reading noted during the run; the first one is the start reading. */

@@ -1,4 +1,4 @@
-import { bigint, doublePrecision, index, integer, jsonb, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
+import { bigint, index, integer, jsonb, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
 import { labs, runs, users } from './core';
 
 /** The team desk: comments on runs, attached files, and the review trail (submission, return, approval, revisions). */
@@ -99,29 +99,4 @@ export const runReviewEvents = pgTable(
     at: timestamp('at', { withTimezone: true }).notNull().defaultNow(),
   },
   (t) => [index('run_review_events_run_idx').on(t.runId, t.at)],
-);
-
-/**
- * The runs table's headline numbers, copied out of runs.result / runs.setup (jsonb, tens of kB per run) so the list
- * can filter, sort and page without reading every run's analysis. Refreshed on read when the run changed: the
- * fingerprint is the run's updated_at and the stored sizes of its result and setup.
- */
-export const runSummaries = pgTable(
-  'run_summaries',
-  {
-    runId: uuid('run_id')
-      .primaryKey()
-      .references(() => runs.id, { onDelete: 'cascade' }),
-    labId: uuid('lab_id')
-      .notNull()
-      .references(() => labs.id, { onDelete: 'cascade' }),
-    equivalenceVolumeMl: doublePrecision('equivalence_volume_ml'),
-    pKa: doublePrecision('pka'),
-    molarMassGPerMol: doublePrecision('molar_mass_g_per_mol'),
-    concentrationM: doublePrecision('concentration_m'),
-    titrantLot: text('titrant_lot'),
-    readingCount: integer('reading_count').notNull().default(0),
-    fingerprint: text('fingerprint').notNull(),
-  },
-  (t) => [index('run_summaries_lab_ve_idx').on(t.labId, t.equivalenceVolumeMl), index('run_summaries_lab_lot_idx').on(t.labId, t.titrantLot)],
 );

@@ -1,13 +1,16 @@
 import { attachments } from '../../db/schema/desk';
+import type { ServerContext } from '../auth/context';
 import { isUuid, recordLab, route } from '../http/routes';
 import { notFound } from '../http/errors';
+import { isCalibrationOfLab } from '../repos/calibrations';
 import * as files from '../services/runs-attachments';
 import { runLab } from './runs';
 
 const ALL = ['manager', 'analyst', 'viewer'] as const;
 const attachmentLab = recordLab(attachments, attachments.id, attachments.labId, 'attachmentId');
-const calibrationParam = (id: string) => {
-  if (!isUuid(id)) throw notFound('Calibration');
+/** A calibration record of this lab (another lab's is not found), so no file is attached to nothing. */
+const calibrationParam = async (app: ServerContext, labId: string, id: string) => {
+  if (!isUuid(id) || !(await isCalibrationOfLab(app.database.db, labId, id))) throw notFound('Calibration');
   return id;
 };
 
@@ -28,8 +31,8 @@ export const attachmentRoutes = [
     labParam: 'labId',
     status: 201,
     summary: 'Attach a file (e.g. a primary standard’s certificate) to a calibration of the lab.',
-    handler: ({ app, caller, lab, params, req, res }) =>
-      files.store(app, caller!, req, res, { labId: lab!.id, calibrationId: calibrationParam(params.calibrationId) }),
+    handler: async ({ app, caller, lab, params, req, res }) =>
+      files.store(app, caller!, req, res, { labId: lab!.id, calibrationId: await calibrationParam(app, lab!.id, params.calibrationId) }),
   }),
   route({
     method: 'get',
@@ -37,7 +40,7 @@ export const attachmentRoutes = [
     access: ALL,
     labParam: 'labId',
     summary: 'Files attached to a calibration.',
-    handler: ({ app, lab, params }) => files.listForCalibration(app, lab!.id, calibrationParam(params.calibrationId)),
+    handler: async ({ app, lab, params }) => files.listForCalibration(app, lab!.id, await calibrationParam(app, lab!.id, params.calibrationId)),
   }),
   route({
     method: 'get',

@@ -1,3 +1,4 @@
+import quamA2 from '../../shared/engine/fixtures/standardize-quam-a2.json';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { auditLog } from '../../db/schema';
 import { eq } from 'drizzle-orm';
@@ -40,18 +41,7 @@ const overview = async (who = 'viewer'): Promise<CalibrationOverview> => {
 };
 
 // Eurachem/CITAC QUAM (3rd ed., 2012), example A2: standardising NaOH with KHP.
-const QUAM_A2 = {
-  standard: 'KHP',
-  massG: 0.3888,
-  uMassG: 0.00013,
-  purity: 1.0,
-  uPurity: 0.00029,
-  molarMass: 204.2212,
-  uMolarMass: 0.0038,
-  equivalenceVolumeMl: 18.64,
-  uEquivalenceVolumeMl: 0.013,
-  uRepeatabilityRel: 0.0005,
-};
+const QUAM_A2 = quamA2;
 
 describe('calibrations API', () => {
   let buretteId: string;

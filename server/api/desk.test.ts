@@ -1,14 +1,17 @@
-import { and, count, eq } from 'drizzle-orm';
+import { and, count, eq, sql } from 'drizzle-orm';
 import Papa from 'papaparse';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditLog, outbox, readings, runs, syncChanges } from '../../db/schema';
+import { auditLog, outbox, readings, runs, syncChanges, users } from '../../db/schema';
+import { serverContextOf } from '../app';
 import { v7 } from 'uuid';
 import { authFixture, TEST_PASSWORD, type AuthFixture } from '../auth/test-fixture';
+import QUAM_A2 from '../../shared/engine/fixtures/standardize-quam-a2.json';
 import { demoRun, insertDemoRun, DEMO_SAMPLES } from '../demo/runs';
 import { startFakeS3 } from '../storage/fake-s3-server';
 import { S3Store } from '../storage/s3';
 import { LocalDiskStore, useStorage } from '../storage';
 import { closeTemplate } from '../testing/db';
+import { eventually, sleep } from '../testing/eventually';
 import { mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
@@ -344,10 +347,15 @@ describe('import', () => {
     const d = await fx.api().get(`/api/runs/${ok.body.runId}`).set('authorization', as('viewer'));
     expect(d.body.run).toMatchObject({ sampleName: 'Imported benzoic acid', status: 'finished', titrantLot: 'NaOH-IMP-1', readingCount: 30 });
     expect(d.body.readings[3]).toMatchObject({ timeS: 30, pH: 3.3 });
-    // Phones pull imported runs: the run and each reading are in sync's change log.
+    // Phones pull imported runs: the run is in sync's change log, each reading carries its place after the run's.
     const logged = await fx.database.db.select().from(syncChanges).where(eq(syncChanges.runId, ok.body.runId));
     expect(logged.filter((c) => c.entity === 'run').length).toBe(1);
-    expect(logged.filter((c) => c.entity === 'reading').length).toBe(30);
+    const placed = await fx.database.db.select({ seq: readings.seq }).from(readings).where(eq(readings.runId, ok.body.runId));
+    expect(placed.length).toBe(30);
+    for (const r of placed) expect(r.seq).toBeGreaterThan(logged.find((c) => c.entity === 'run')!.seq);
+    const pulled = await fx.api().get('/api/sync/pull').query({ cursor: Math.min(...logged.map((c) => c.seq)) - 1, limit: 5000 }).set('authorization', as('viewer'));
+    const mine = pulled.body.changes.filter((c: { entity: string; record: { runId?: string; id: string } }) => (c.record.runId ?? c.record.id) === ok.body.runId);
+    expect(mine.map((c: { entity: string }) => c.entity)).toEqual(['run', 'checkpoint', ...Array(30).fill('reading')]);
   });
 
   it('maps a volume column through the drip rate and reads m:ss times', async () => {
@@ -404,6 +412,8 @@ describe.each([
   });
 
   it('refuses an over-size file, a type it does not take, and content that is not what it claims', async () => {
+    const stored = async () => (await fx.api().get(`/api/runs/${runIdsA[6]}`).set('authorization', as('viewer'))).body.attachments.length as number;
+    const before = await stored();
     const big = Buffer.concat([PNG, Buffer.alloc(10 * 1024 * 1024 + 1)]);
     const tooBig = await upload('analyst', big, 'big.png', 'image/png');
     expect(tooBig.status).toBe(413);
@@ -415,17 +425,130 @@ describe.each([
     expect(pdfAsPng.body.error.code).toBe('type_mismatch');
     const viewer = await upload('viewer', PNG, 'p.png', 'image/png');
     expect(viewer.status).toBe(403);
-    const d = await fx.api().get(`/api/runs/${runIdsA[6]}`).set('authorization', as('viewer'));
-    expect(d.body.attachments.every((a: { mimeType: string }) => a.mimeType === 'image/png')).toBe(true);
+    // None of the refused files was stored.
+    expect(await stored()).toBe(before);
   });
 
   it('attaches a certificate to a calibration of the lab only', async () => {
-    const calId = crypto.randomUUID();
-    const up = await fx.api().post(`/api/labs/${fx.labA.id}/calibrations/${calId}/attachments`).set('authorization', as('manager')).attach('file', PDF, { filename: 'KHP certificate.pdf', contentType: 'application/pdf' });
+    // A standardisation of lab A and one of lab B, through the API (QUAM A2's KHP figures).
+    const standardisation = async (labId: string, who: 'manager' | 'managerB') => {
+      const lot = await fx.api().post(`/api/labs/${labId}/titrant-lots`).set('authorization', as(who)).send({ identifier: `NaOH-att-${who}-${crypto.randomUUID().slice(0, 8)}`, nominalConcentrationM: 0.1, preparedAt: fx.now().toISOString() });
+      expect(lot.status).toBe(201);
+      const std = await fx.api().post(`/api/labs/${labId}/titrant-lots/${lot.body.id}/standardisations`).set('authorization', as(who)).send(QUAM_A2);
+      expect(std.status).toBe(201);
+      return std.body.id as string;
+    };
+    const calId = await standardisation(fx.labA.id, 'manager');
+    const calB = await standardisation(fx.labB.id, 'managerB');
+    const attach = (labId: string, id: string) =>
+      fx.api().post(`/api/labs/${labId}/calibrations/${id}/attachments`).set('authorization', as('manager')).attach('file', PDF, { filename: 'KHP certificate.pdf', contentType: 'application/pdf' });
+    const up = await attach(fx.labA.id, calId);
     expect(up.status).toBe(201);
     const listed = await fx.api().get(`/api/labs/${fx.labA.id}/calibrations/${calId}/attachments`).set('authorization', as('viewer'));
     expect(listed.body.map((a: { originalName: string }) => a.originalName)).toEqual(['KHP certificate.pdf']);
-    const fromB = await fx.api().get(`/api/labs/${fx.labB.id}/calibrations/${calId}/attachments`).set('authorization', as('managerB'));
+    // No such calibration, or another lab's under this lab's path: not found, nothing stored.
+    expect((await attach(fx.labA.id, crypto.randomUUID())).status).toBe(404);
+    expect((await attach(fx.labA.id, calB)).status).toBe(404);
+    expect((await fx.api().get(`/api/labs/${fx.labA.id}/calibrations/${calB}/attachments`).set('authorization', as('viewer'))).status).toBe(404);
+    const fromB = await fx.api().get(`/api/labs/${fx.labB.id}/calibrations/${calB}/attachments`).set('authorization', as('managerB'));
     expect(fromB.body).toEqual([]);
+  });
+});
+
+describe('runs list: answers cached per lab, a change shows in the next request', () => {
+  type Row = { id: string; sampleName: string; status: string; readingCount: number; analystId: string; analystName: string };
+  const listed = async (who: 'viewer' | 'manager' = 'viewer') => (await list({ pageSize: 200 }, who)).body as { rows: Row[]; total: number; facets: { titrantLots: string[] } };
+  const rowOf = async (runId: string) => (await listed()).rows.find((r) => r.id === runId);
+  const cache = () => serverContextOf(fx.app).labCache;
+  const pushAs = (who: 'analyst' | 'manager', deviceId: string, changes: unknown[]) =>
+    fx.api().post('/api/sync/push').set('authorization', as(who)).send({ deviceId, sentAt: Date.now(), changes });
+
+  /** Answers are kept only once the instance listens (the first list request starts it); then one fill is kept. */
+  async function warm() {
+    for (let i = 0; i < 200 && !cache().active; i++) {
+      await listed();
+      await sleep(10);
+    }
+    expect(cache().active).toBe(true);
+    // Notifications of earlier direct writes reach a PostgreSQL listener a moment after their commit.
+    if (fx.database.kind === 'postgres') await sleep(200);
+    await listed();
+    expect(cache().size).toBeGreaterThan(0);
+  }
+
+
+  it('answers from the cache: a write the database did not announce stays unseen until it is announced', async () => {
+    const runId = runIdsA[7];
+    await warm();
+    const before = (await rowOf(runId))!.sampleName;
+    await fx.database.db.transaction(async (tx) => {
+      await tx.execute(sql`alter table runs disable trigger runs_desk_update`);
+      await tx.update(runs).set({ sampleName: 'Renamed without a notification (test)' }).where(eq(runs.id, runId));
+      await tx.execute(sql`alter table runs enable trigger runs_desk_update`);
+    });
+    expect((await rowOf(runId))!.sampleName).toBe(before);
+    await fx.database.query(`select pg_notify('halfmark_desk', $1)`, [fx.labA.id]);
+    await eventually(async () => expect((await rowOf(runId))!.sampleName).toBe('Renamed without a notification (test)'));
+    await fx.database.db.update(runs).set({ sampleName: before }).where(eq(runs.id, runId));
+    await eventually(async () => expect((await rowOf(runId))!.sampleName).toBe(before));
+  });
+
+  it('a run, readings and an edit pushed from a phone show in the next list request, total and counts included', async () => {
+    await warm();
+    const total = (await listed()).total;
+    const deviceId = v7();
+    const runId = v7();
+    const first = await pushAs('analyst', deviceId, [
+      {
+        id: runId,
+        kind: 'run',
+        seq: 1,
+        recordedAt: Date.now(),
+        payload: { labId: fx.labA.id, sampleName: 'Pushed while the desk looks (test)', status: 'recording', setup: { titrant: { lotLabel: 'NaOH-PUSHED-1' } } },
+      },
+      { id: v7(), kind: 'reading', seq: 2, recordedAt: Date.now(), payload: { runId, timeS: 0, pH: 3.1 } },
+    ]);
+    expect(first.body.results.map((r: { outcome: string }) => r.outcome)).toEqual(['accepted', 'accepted']);
+    const after = await listed();
+    expect(after.total).toBe(total + 1);
+    expect(after.rows.find((r) => r.id === runId)).toMatchObject({ sampleName: 'Pushed while the desk looks (test)', readingCount: 1 });
+    expect(after.facets.titrantLots).toContain('NaOH-PUSHED-1');
+
+    await pushAs('analyst', deviceId, [{ id: v7(), kind: 'reading', seq: 3, recordedAt: Date.now(), payload: { runId, timeS: 5, pH: 3.2 } }]);
+    expect((await rowOf(runId))!.readingCount).toBe(2);
+    await pushAs('analyst', deviceId, [{ id: v7(), kind: 'run_meta_edit', seq: 4, recordedAt: Date.now(), payload: { runId, field: 'sampleName', value: 'Renamed on the phone (test)', baseVersion: 1 } }]);
+    expect((await rowOf(runId))!.sampleName).toBe('Renamed on the phone (test)');
+  });
+
+  it('review steps and an import show in the next list request', async () => {
+    const runId = runIdsA[8]; // finished, by the analyst
+    await warm();
+    expect((await rowOf(runId))!.status).toBe('finished');
+    expect((await fx.api().post(`/api/runs/${runId}/submit`).set('authorization', as('analyst')).send({})).status).toBe(200);
+    expect((await rowOf(runId))!.status).toBe('submitted');
+    expect((await fx.api().post(`/api/runs/${runId}/return`).set('authorization', as('manager')).send({ comment: 'Redo the blank.' })).status).toBe(200);
+    expect((await rowOf(runId))!.status).toBe('returned');
+
+    const csv = ['time_s,pH', ...Array.from({ length: 12 }, (_v, i) => `${i * 10},${(3 + i * 0.1).toFixed(2)}`)].join('\n');
+    const setup = { sampleName: 'Imported while listed (test)', sampleVolumeMl: 50, sampleMassG: 0.2, titrantConcentrationM: 0.1, rateMlPerS: 0.05 };
+    const imported = await fx.api().post(`/api/labs/${fx.labA.id}/imports`).set('authorization', as('analyst')).send({ csv, mapping: { time: 'time_s', pH: 'pH' }, setup });
+    expect(imported.status).toBe(201);
+    expect(await rowOf(imported.body.runId)).toMatchObject({ sampleName: 'Imported while listed (test)', readingCount: 12 });
+  });
+
+  it('a change committed elsewhere (another server instance, a script) shows once the database announces it', async () => {
+    const runId = runIdsA[10];
+    await warm();
+    const row = (await rowOf(runId))!;
+    // Straight to the database, as another instance on the same PostgreSQL server would write it.
+    const [first] = await fx.database.db.select().from(readings).where(eq(readings.runId, runId)).limit(1);
+    await fx.database.db.insert(readings).values({ id: v7(), runId, labId: fx.labA.id, kind: 'reading', timeS: first.timeS + 0.5, pH: 3 });
+    await eventually(async () => expect((await rowOf(runId))!.readingCount).toBe(row.readingCount + 1));
+    // An analyst's new display name shows in every lab's lists.
+    const [analyst] = await fx.database.db.select().from(users).where(eq(users.id, row.analystId));
+    await fx.database.db.update(users).set({ displayName: 'Renamed analyst (test)' }).where(eq(users.id, analyst.id));
+    await eventually(async () => expect((await rowOf(runId))!.analystName).toBe('Renamed analyst (test)'));
+    await fx.database.db.update(users).set({ displayName: analyst.displayName }).where(eq(users.id, analyst.id));
+    await eventually(async () => expect((await rowOf(runId))!.analystName).toBe(analyst.displayName));
   });
 });

@@ -1,6 +1,6 @@
 import { Router } from 'express';
 import type { AppDeps } from '../app';
-import { createServerContext } from '../auth/context';
+import { createServerContext, type ServerContext } from '../auth/context';
 import { mountRoutes, type RouteDef } from '../http/routes';
 import { devMailboxRoutes } from '../mail/dev-mailbox';
 import { authRoutes } from './auth';
@@ -17,9 +17,8 @@ import { syncRoutes } from './sync';
 export const apiRoutes: RouteDef[] = [...healthRoutes, ...authRoutes, ...labRoutes, ...calibrationRoutes, ...deskRoutes, ...syncRoutes, ...devMailboxRoutes];
 
 /** The JSON API. */
-export function apiRouter(deps: AppDeps & { log: NonNullable<AppDeps['log']> }): Router {
+export function apiRouter(deps: AppDeps & { log: NonNullable<AppDeps['log']> }, app: ServerContext = createServerContext(deps)): Router {
   const router = Router();
-  const app = createServerContext(deps);
   mountRoutes(router, apiRoutes.filter((r) => !(r.devOnly && app.production)), app);
   return router;
 }

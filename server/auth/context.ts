@@ -1,4 +1,5 @@
 import type { Database } from '../../db/client';
+import { AUTH_CHANNEL, DESK_CHANNEL, NotifiedCache } from '../services/notified-cache';
 import { RateLimiter } from './rate-limit';
 import { loadSigningKey } from './secret';
 import { TokenSigner } from './tokens';
@@ -29,6 +30,10 @@ export interface ServerContext {
   limiter: RateLimiter;
   /** Called after a transaction that wrote e-mail to the outbox commits. */
   mailNudge(): void;
+  /** Desk list answers per lab, dropped when the lab's runs change (server/services/notified-cache.ts). */
+  labCache: NotifiedCache;
+  /** Session, account and memberships per user for the access check, dropped when any of them changes. */
+  sessionCache: NotifiedCache;
 }
 
 export function createServerContext(deps: {
@@ -57,5 +62,7 @@ export function createServerContext(deps: {
     },
     limiter: new RateLimiter(deps.database, now),
     mailNudge: () => deps.mail?.nudge(),
+    labCache: new NotifiedCache(deps.database, DESK_CHANNEL, { log: deps.log }),
+    sessionCache: new NotifiedCache(deps.database, AUTH_CHANNEL, { log: deps.log, maxEntries: 2000 }),
   };
 }

@@ -1,6 +1,10 @@
+import { eq, sql } from 'drizzle-orm';
 import { SignJWT, UnsecuredJWT } from 'jose';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { labs, memberships, sessions, users } from '../../db/schema';
+import { serverContextOf } from '../app';
 import { closeTemplate } from '../testing/db';
+import { eventually, sleep } from '../testing/eventually';
 import { authFixture, TEST_JWT_SECRET, type AuthFixture } from './test-fixture';
 import { ACCESS_TOKEN } from './tokens';
 
@@ -51,13 +55,13 @@ describe('access token verification', () => {
         .setProtectedHeader({ alg: 'HS512', typ: ACCESS_TOKEN.typ })
         .setIssuer(ACCESS_TOKEN.issuer).setAudience(ACCESS_TOKEN.audience).setSubject(fx.people.analyst.id)
         .setIssuedAt(t).setNotBefore(t).setExpirationTime(t + 600)
-        .sign(new TextEncoder().encode(TEST_JWT_SECRET + TEST_JWT_SECRET));
+        .sign(key);
     }],
     ['bad signature (another secret)', () => claims().sign(new TextEncoder().encode('another-secret-of-sufficient-length-000000'))],
-    ['tampered payload', async () => {
-      const [h, , s] = (await claims().sign(key)).split('.');
-      const p = Buffer.from(JSON.stringify({ sub: fx.people.manager.id, sid })).toString('base64url');
-      return `${h}.${p}.${s}`;
+    ['tampered payload (every claim valid, only the subject changed)', async () => {
+      const [h, p0, s] = (await claims().sign(key)).split('.');
+      const payload = { ...JSON.parse(Buffer.from(p0, 'base64url').toString()), sub: fx.people.manager.id };
+      return `${h}.${Buffer.from(JSON.stringify(payload)).toString('base64url')}.${s}`;
     }],
     ['wrong issuer', () => claims({ iss: 'someone-else' }).sign(key)],
     ['wrong audience', () => claims({ aud: 'another-api' }).sign(key)],
@@ -118,5 +122,67 @@ describe('refresh tokens', () => {
     await fx.api().post('/api/auth/logout').set('cookie', s.refreshCookie).expect(204);
     await fx.api().post('/api/auth/refresh').set('cookie', s.refreshCookie).expect(401);
     await me(s.accessToken).expect(401);
+  });
+});
+
+describe('the access check is cached per session; a change ends access at the next request', () => {
+  const cache = () => serverContextOf(fx.app).sessionCache;
+  const bearer = (token: string) => `Bearer ${token}`;
+
+  /** A session whose access check is cached (the instance listens once any request was checked). */
+  async function cachedSession(userId: string) {
+    const s = await fx.session(userId);
+    for (let i = 0; i < 200 && !cache().active; i++) {
+      await me(s.accessToken).expect(200);
+      await sleep(10);
+    }
+    expect(cache().active).toBe(true);
+    // Notifications of earlier direct writes reach a PostgreSQL listener a moment after their commit.
+    if (fx.database.kind === 'postgres') await sleep(200);
+    await me(s.accessToken).expect(200);
+    await me(s.accessToken).expect(200);
+    return s;
+  }
+
+
+  it('answers from the cache: a session ended without a notification still passes until it is announced', async () => {
+    const s = await cachedSession(fx.people.viewer.id);
+    await fx.database.db.transaction(async (tx) => {
+      await tx.execute(sql`alter table sessions disable trigger sessions_auth_update`);
+      await tx.update(sessions).set({ revokedAt: fx.now(), revokedReason: 'test' }).where(eq(sessions.id, s.sessionId));
+      await tx.execute(sql`alter table sessions enable trigger sessions_auth_update`);
+    });
+    await me(s.accessToken).expect(200);
+    await fx.database.query(`select pg_notify('halfmark_auth', $1)`, [fx.people.viewer.id]);
+    await eventually(() => me(s.accessToken).expect(401));
+  });
+
+  it('sign-out through this instance ends access on the very next request', async () => {
+    const s = await cachedSession(fx.people.analyst.id);
+    await fx.api().post('/api/auth/logout').set('cookie', s.refreshCookie).expect(204);
+    await me(s.accessToken).expect(401);
+  });
+
+  it('a session ended or an account disabled elsewhere (another instance, a script) is refused once announced', async () => {
+    const s = await cachedSession(fx.people.analyst.id);
+    await fx.database.db.update(sessions).set({ revokedAt: fx.now(), revokedReason: 'test' }).where(eq(sessions.id, s.sessionId));
+    await eventually(() => me(s.accessToken).expect(401));
+
+    const target = await fx.person(fx.labA.id, 'analyst');
+    const t = await cachedSession(target.id);
+    await fx.database.db.update(users).set({ disabledAt: fx.now() }).where(eq(users.id, target.id));
+    await eventually(() => me(t.accessToken).expect(401));
+  });
+
+  it('memberships and lab names changed elsewhere apply once announced', async () => {
+    const target = await fx.person(fx.labA.id, 'viewer');
+    const s = await cachedSession(target.id);
+    const runs = () => fx.api().get(`/api/labs/${fx.labA.id}/runs`).set('authorization', bearer(s.accessToken));
+    await runs().expect(200);
+    await fx.database.db.update(labs).set({ name: 'Lab A renamed (test)' }).where(eq(labs.id, fx.labA.id));
+    await eventually(async () => expect((await me(s.accessToken).expect(200)).body.labs[0].labName).toBe('Lab A renamed (test)'));
+    await fx.database.db.update(labs).set({ name: 'Lab A (test)' }).where(eq(labs.id, fx.labA.id));
+    await fx.database.db.delete(memberships).where(eq(memberships.userId, target.id));
+    await eventually(() => runs().expect(404));
   });
 });

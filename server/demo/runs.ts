@@ -38,12 +38,15 @@ export interface DemoSample {
   lot: string;
 }
 
+// Thermodynamic pKa at 25 °C (I → 0): benzoic 4.204 and acetic 4.756 (CRC-style tables, as in Harvey's appendix),
+// KHP's is phthalic acid's second, 5.408 (Kaye & Laby). The curves are simulated with Davies activities, as a real
+// solution behaves and as the engine fits by default.
 export const DEMO_SAMPLES: DemoSample[] = [
-  { name: 'Benzoic acid, batch 7 (demo)', formula: 'C7H6O2', pKa: [4.2], massG: 0.2442, lot: 'NaOH-DEMO-A' },
-  { name: 'KHP check standard (demo)', formula: 'C8H5KO4', pKa: [5.41], massG: 0.4085, lot: 'NaOH-DEMO-A' },
-  { name: 'Acetic acid, unknown 3 (demo)', formula: 'C2H4O2', pKa: [4.76], massG: 0.1201, lot: 'NaOH-DEMO-B' },
-  { name: 'Benzoic acid, batch 8 (demo)', formula: 'C7H6O2', pKa: [4.2], massG: 0.2380, lot: 'NaOH-DEMO-B' },
-  { name: 'Acetic acid, unknown 4 (demo)', formula: 'C2H4O2', pKa: [4.76], massG: 0.1502, lot: 'NaOH-DEMO-A' },
+  { name: 'Benzoic acid, batch 7 (demo)', formula: 'C7H6O2', pKa: [4.204], massG: 0.2442, lot: 'NaOH-DEMO-A' },
+  { name: 'KHP check standard (demo)', formula: 'C8H5KO4', pKa: [5.408], massG: 0.4085, lot: 'NaOH-DEMO-A' },
+  { name: 'Acetic acid, unknown 3 (demo)', formula: 'C2H4O2', pKa: [4.756], massG: 0.1201, lot: 'NaOH-DEMO-B' },
+  { name: 'Benzoic acid, batch 8 (demo)', formula: 'C7H6O2', pKa: [4.204], massG: 0.2380, lot: 'NaOH-DEMO-B' },
+  { name: 'Acetic acid, unknown 4 (demo)', formula: 'C2H4O2', pKa: [4.756], massG: 0.1502, lot: 'NaOH-DEMO-A' },
 ];
 
 export interface DemoRun {
@@ -70,6 +73,7 @@ export function demoRun(opts: { labId: string; analystId: string; index: number;
     timesS: times,
     delivery: { rateMlPerS: rate },
     temperatureC: 25,
+    activity: 'davies',
   });
   const id = demoId(`demo-run-${opts.labId}-${opts.index}`);
   const rs = sim.points.map((p, k) => ({

@@ -22,6 +22,19 @@ export const unknownApiRoute: RequestHandler = (req, _res, next) => {
   next(new HttpError(404, 'no_such_route', `No API route ${req.method} ${req.path}.`));
 };
 
+/**
+ * PostgreSQL cannot store the character U+0000 in text (22021, "invalid byte sequence for encoding UTF8: 0x00") or in
+ * jsonb (22P05, "unsupported Unicode escape sequence"), whichever field or query parameter carried it. That is the
+ * client's input, not a server failure. Drivers and drizzle wrap the database error, so the chain of causes is read.
+ */
+function nulRefused(err: unknown): boolean {
+  for (let x: unknown = err; x && typeof x === 'object'; x = (x as { cause?: unknown }).cause) {
+    const code = (x as { code?: unknown }).code;
+    if (code === '22021' || code === '22P05') return true;
+  }
+  return false;
+}
+
 function zodDetails(err: ZodError) {
   return err.issues.map((i) => ({ path: i.path.join('.'), message: i.message, code: i.code }));
 }
@@ -45,6 +58,9 @@ export function errorHandler(log: (msg: string, err: unknown) => void): ErrorReq
     } else if (err && typeof err === 'object' && 'type' in err && err.type === 'entity.too.large') {
       status = 413;
       body = { code: 'too_large', message: 'The request body is larger than this server accepts.' };
+    } else if (nulRefused(err)) {
+      status = 400;
+      body = { code: 'invalid_text', message: 'Text cannot contain the NUL character (U+0000).' };
     } else if (err && typeof err === 'object' && 'status' in err && typeof err.status === 'number' && err.status < 500) {
       status = err.status;
       body = { code: 'bad_request', message: 'The request could not be understood.' };

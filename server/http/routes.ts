@@ -4,7 +4,6 @@ import type { Request, Response, Router } from 'express';
 import type { z } from 'zod';
 import type { Role } from '../../shared/schemas/roles';
 import type { ServerContext } from '../auth/context';
-import * as labsRepo from '../repos/labs';
 import * as sessionsRepo from '../repos/sessions';
 import { HttpError, forbidden, notFound } from './errors';
 
@@ -27,7 +26,7 @@ export interface Caller {
   sessionId: string;
   email: string;
   displayName: string;
-  labs: { labId: string; labName: string; isDemo: boolean; role: Role }[];
+  labs: readonly { labId: string; labName: string; isDemo: boolean; role: Role }[];
   roleIn(labId: string): Role | undefined;
 }
 
@@ -60,6 +59,11 @@ export interface RouteDef<B = unknown, Q = unknown> {
   summary: string;
   /** Returns the JSON body, or sends the response itself via ctx.res. */
   handler: (ctx: RouteContext<B, Q>) => unknown;
+}
+
+/** A reply already serialised to JSON (a cached answer): sent as it is, not stringified again per request. */
+export class JsonText {
+  constructor(readonly text: string) {}
 }
 
 /** Declares a route; typing only, so definitions can live at module level and be listed by tests. */
@@ -113,10 +117,13 @@ export class Authenticator {
     if (!m) throw unauthenticated(true);
     const claims = await (await this.app.signer()).verify(m[1]);
     if (!claims || !isUuid(claims.sessionId) || !isUuid(claims.userId)) throw unauthenticated(true);
-    const state = await sessionsRepo.sessionState(this.app.database.db, claims.sessionId, claims.userId);
+    // Cached per user until the session, the account or a membership changes (a trigger announces it).
+    const state = await this.app.sessionCache.get(claims.userId, claims.sessionId, () =>
+      sessionsRepo.sessionState(this.app.database.db, claims.sessionId, claims.userId),
+    );
     const now = this.app.now().getTime();
     if (!state || state.revokedAt || state.disabledAt || state.expiresAt.getTime() <= now) throw unauthenticated(true);
-    const labs = await labsRepo.membershipsOf(this.app.database.db, claims.userId);
+    const labs = state.labs;
     const roles = new Map(labs.map((l) => [l.labId, l.role]));
     return {
       userId: claims.userId,
@@ -151,10 +158,24 @@ export function mountRoutes(router: Router, defs: RouteDef[], app: ServerContext
       }
       const body = def.body ? def.body.parse(req.body ?? {}) : undefined;
       const query = def.query ? def.query.parse(req.query ?? {}) : undefined;
-      const result = await def.handler({ req, res, app, caller, body, query, params, lab });
+      let result: unknown;
+      try {
+        result = await def.handler({ req, res, app, caller, body, query, params, lab });
+      } finally {
+        // A write may have committed (even if the handler failed after it): this instance's cached answers must not
+        // outlive it, though the notification of the commit may reach its listener a moment later. The lists of the
+        // route's lab (of every lab when the route names none); every access check, as a write may end a session or
+        // change a membership. Other instances hear of it by NOTIFY.
+        if (def.method !== 'get') {
+          if (lab) app.labCache.invalidate(lab.id);
+          else app.labCache.invalidateAll();
+          app.sessionCache.invalidateAll();
+        }
+      }
       if (res.headersSent) return;
       const status = def.status ?? 200;
       if (status === 204) res.status(204).end();
+      else if (result instanceof JsonText) res.status(status).type('application/json').send(result.text);
       else res.status(status).json(result ?? {});
     });
   }

@@ -22,6 +22,15 @@ export type ElectrodeCalibrationRow = typeof electrodeCalibrations.$inferSelect;
 export type TitrantLotRow = typeof titrantLots.$inferSelect;
 export type StandardisationRow = typeof standardisations.$inferSelect;
 
+/** Whether `id` is a calibration record of the lab: a drip calibration, a standardisation or an electrode calibration. */
+export async function isCalibrationOfLab(db: Executor, labId: string, id: string): Promise<boolean> {
+  for (const t of [dripCalibrations, standardisations, electrodeCalibrations]) {
+    const [row] = await db.select({ id: t.id }).from(t).where(and(eq(t.id, id), eq(t.labId, labId))).limit(1);
+    if (row) return true;
+  }
+  return false;
+}
+
 // ---------- lab settings ----------
 
 export async function labSettings(db: Executor, labId: string): Promise<unknown> {

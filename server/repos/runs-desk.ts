@@ -1,17 +1,10 @@
-import { and, asc, desc, eq, ilike, inArray, or, sql, type SQL } from 'drizzle-orm';
+import { and, asc, desc, eq, ilike, or, sql, type SQL } from 'drizzle-orm';
 import { auditLog, checkpoints, labs, memberships, readings, runEvents, runs, users } from '../../db/schema';
-import { runComments, runReviewEvents, runRevisions, runSummaries } from '../../db/schema/desk';
+import { runComments, runReviewEvents, runRevisions } from '../../db/schema/desk';
 import type { RunListQuery } from '../../shared/schemas/desk';
 import type { Executor } from './executor';
 
 /** Reading rows of the desk: the runs table, the run's records, comments, the review trail. Plain rows out. */
-
-// The run's headline numbers live in the stored analysis (runs.result); the titrant lot in the setup the bench wrote.
-const ve = sql<number | null>`(${runs.result}#>>'{equivalencePoints,0,volumeMl}')::float8`;
-const pKa = sql<number | null>`(${runs.result}#>>'{pKa,0}')::float8`;
-const molarMass = sql<number | null>`(${runs.result}->>'molarMassGPerMol')::float8`;
-const concentration = sql<number | null>`(${runs.result}->>'analyteConcentrationM')::float8`;
-export const titrantLotExpr = sql<string | null>`coalesce(${runs.setup}#>>'{titrant,lotLabel}', ${runs.setup}#>>'{titrant,lotId}')`;
 
 function escapeLike(s: string): string {
   return s.replace(/[\\%_]/g, (c) => `\\${c}`);
@@ -24,7 +17,7 @@ function filters(labId: string, q: RunListQuery): SQL {
   if (q.sample) where.push(ilike(runs.sampleName, `%${escapeLike(q.sample)}%`));
   if (q.from) where.push(sql`${runs.createdAt} >= ${`${q.from}T00:00:00Z`}::timestamptz`);
   if (q.to) where.push(sql`${runs.createdAt} < (${`${q.to}T00:00:00Z`}::timestamptz + interval '1 day')`);
-  if (q.titrantLot) where.push(eq(runSummaries.titrantLot, q.titrantLot));
+  if (q.titrantLot) where.push(eq(runs.titrantLot, q.titrantLot));
   if (q.q) {
     const like = `%${escapeLike(q.q)}%`;
     where.push(or(ilike(runs.sampleName, like), ilike(runs.notes, like), ilike(users.displayName, like)));
@@ -32,90 +25,111 @@ function filters(labId: string, q: RunListQuery): SQL {
   return and(...where)!;
 }
 
+// The headline numbers are stored generated columns of runs (db/schema/core.ts): sorting by them reads no jsonb.
 const SORTS = {
   date: runs.createdAt,
   sample: sql`lower(${runs.sampleName})`,
   analyst: sql`lower(${users.displayName})`,
   status: runs.status,
-  ve: runSummaries.equivalenceVolumeMl,
-  pka: runSummaries.pKa,
+  ve: runs.equivalenceVolumeMl,
+  pka: runs.pKa,
 } as const;
 
-const fingerprint = sql`${runs.updatedAt}::text || ':' || coalesce(pg_column_size(${runs.result}), 0) || ':' || pg_column_size(${runs.setup})`;
+export interface RunListRow {
+  id: string;
+  sampleName: string;
+  analystId: string;
+  analystName: string;
+  status: string;
+  createdAt: Date;
+  updatedAt: Date;
+  equivalenceVolumeMl: number | null;
+  pKa: number | null;
+  molarMassGPerMol: number | null;
+  concentrationM: number | null;
+  titrantLot: string | null;
+  isDemo: boolean;
+  readingCount: number;
+  lastReceivedAt: Date | null;
+  /** Runs matching the filters on every page (a window count). */
+  total: number;
+}
+
+const asDate = (v: unknown) => (v instanceof Date ? v : new Date(v as string));
 
 /**
- * Brings the lab's run summaries up to date: only runs whose fingerprint changed are read out of their jsonb, so a
- * list of 1,000 unchanged runs costs one join on primary keys.
+ * One page of the lab's runs, the total matching count (a window count) and each row's readings count and last
+ * receipt, in one statement: one round trip, one snapshot.
  */
-export async function refreshSummaries(db: Executor, labId: string) {
-  await db.execute(sql`
-    insert into ${runSummaries} (run_id, lab_id, equivalence_volume_ml, pka, molar_mass_g_per_mol, concentration_m, titrant_lot, fingerprint)
-    select ${runs.id}, ${runs.labId}, ${ve}, ${pKa}, ${molarMass}, ${concentration}, ${titrantLotExpr}, ${fingerprint}
-    from ${runs} left join ${runSummaries} on ${runSummaries.runId} = ${runs.id}
-    where ${runs.labId} = ${labId} and (${runSummaries.runId} is null or ${runSummaries.fingerprint} <> ${fingerprint})
-    on conflict (run_id) do update set
-      equivalence_volume_ml = excluded.equivalence_volume_ml, pka = excluded.pka,
-      molar_mass_g_per_mol = excluded.molar_mass_g_per_mol, concentration_m = excluded.concentration_m,
-      titrant_lot = excluded.titrant_lot, fingerprint = excluded.fingerprint`);
-}
-
-/** One page of the lab's runs with the total matching count (a window count: one query, one pass). */
-export async function listRuns(db: Executor, labId: string, q: RunListQuery) {
+export async function listRuns(db: Executor, labId: string, q: RunListQuery): Promise<RunListRow[]> {
   const key = SORTS[q.sort];
   // Runs without a result sort last either way, so "lowest Ve first" does not open on a page of blanks.
-  const order = sql`${key} ${q.dir === 'asc' ? sql`asc` : sql`desc`} nulls last`;
-  return db
-    .select({
-      id: runs.id,
-      sampleName: runs.sampleName,
-      analystId: runs.analystId,
-      analystName: users.displayName,
-      status: runs.status,
-      createdAt: runs.createdAt,
-      updatedAt: runs.updatedAt,
-      equivalenceVolumeMl: runSummaries.equivalenceVolumeMl,
-      pKa: runSummaries.pKa,
-      molarMassGPerMol: runSummaries.molarMassGPerMol,
-      concentrationM: runSummaries.concentrationM,
-      titrantLot: runSummaries.titrantLot,
-      isDemo: runs.isDemo,
-      total: sql<number>`count(*) over ()`.mapWith(Number),
-    })
+  const order = sql`${key} ${q.dir === 'asc' ? sql`asc` : sql`desc`} nulls last, ${runs.createdAt} desc, ${runs.id} asc`;
+  const res = await db.execute(sql`
+    select p.*, coalesce(s.reading_count, 0)::int as reading_count, s.last_received_at
+    from (
+      select ${runs.id} as id, ${runs.sampleName} as sample_name, ${runs.analystId} as analyst_id,
+        ${users.displayName} as analyst_name, ${runs.status} as status, ${runs.createdAt} as created_at,
+        ${runs.updatedAt} as updated_at, ${runs.equivalenceVolumeMl} as equivalence_volume_ml, ${runs.pKa} as pka,
+        ${runs.molarMassGPerMol} as molar_mass_g_per_mol, ${runs.concentrationM} as concentration_m,
+        ${runs.titrantLot} as titrant_lot, ${runs.isDemo} as is_demo,
+        count(*) over () as total, row_number() over (order by ${order}) as position
+      from ${runs} join ${users} on ${users.id} = ${runs.analystId}
+      where ${filters(labId, q)}
+      order by ${order}
+      limit ${q.pageSize} offset ${(q.page - 1) * q.pageSize}
+    ) p
+    left join lateral (
+      select count(*) filter (where r.kind = 'reading') as reading_count, max(r.received_at) as last_received_at
+      from ${readings} r where r.run_id = p.id
+    ) s on true
+    order by p.position`);
+  return rowsOf<Record<string, unknown>>(res).map((r) => ({
+    id: r.id as string,
+    sampleName: r.sample_name as string,
+    analystId: r.analyst_id as string,
+    analystName: r.analyst_name as string,
+    status: r.status as string,
+    createdAt: asDate(r.created_at),
+    updatedAt: asDate(r.updated_at),
+    equivalenceVolumeMl: r.equivalence_volume_ml as number | null,
+    pKa: r.pka as number | null,
+    molarMassGPerMol: r.molar_mass_g_per_mol as number | null,
+    concentrationM: r.concentration_m as number | null,
+    titrantLot: r.titrant_lot as string | null,
+    isDemo: r.is_demo as boolean,
+    readingCount: Number(r.reading_count),
+    lastReceivedAt: r.last_received_at == null ? null : asDate(r.last_received_at),
+    total: Number(r.total),
+  }));
+}
+
+/** Runs matching the filters (for a page past the end, which has no row to carry the window count). */
+export async function countRuns(db: Executor, labId: string, q: RunListQuery): Promise<number> {
+  const [row] = await db
+    .select({ n: sql<number>`count(*)`.mapWith(Number) })
     .from(runs)
     .innerJoin(users, eq(users.id, runs.analystId))
-    .innerJoin(runSummaries, eq(runSummaries.runId, runs.id))
-    .where(filters(labId, q))
-    .orderBy(order, desc(runs.createdAt), asc(runs.id))
-    .limit(q.pageSize)
-    .offset((q.page - 1) * q.pageSize);
+    .where(filters(labId, q));
+  return row?.n ?? 0;
 }
 
-/** Readings count and last receipt per run, for the rows of one page. */
-export async function readingStats(db: Executor, runIds: string[]) {
-  if (!runIds.length) return [];
-  return db
-    .select({
-      runId: readings.runId,
-      count: sql<number>`count(*) filter (where ${readings.kind} = 'reading')`.mapWith(Number),
-      last: sql<Date | null>`max(${readings.receivedAt})`.mapWith((v) => (v ? new Date(v as string) : null)),
-    })
-    .from(readings)
-    .where(inArray(readings.runId, runIds))
-    .groupBy(readings.runId);
-}
-
+/** Analysts and titrant lots that appear in the lab's runs (the filter pickers), in one statement. */
 export async function facets(db: Executor, labId: string) {
-  const analysts = await db
-    .selectDistinct({ id: users.id, name: users.displayName })
-    .from(runs)
-    .innerJoin(users, eq(users.id, runs.analystId))
-    .where(eq(runs.labId, labId))
-    .orderBy(users.displayName);
-  const lots = await db
-    .selectDistinct({ lot: runSummaries.titrantLot })
-    .from(runSummaries)
-    .where(and(eq(runSummaries.labId, labId), sql`${runSummaries.titrantLot} is not null`));
-  return { analysts, titrantLots: lots.map((l) => l.lot!).sort() };
+  const res = await db.execute(sql`
+    select
+      (select coalesce(json_agg(json_build_object('id', u.id, 'name', u.display_name) order by u.display_name, u.id), '[]')
+         from ${users} u where u.id in (select distinct r.analyst_id from ${runs} r where r.lab_id = ${labId})) as analysts,
+      (select coalesce(json_agg(l.lot), '[]')
+         from (select distinct r.titrant_lot as lot from ${runs} r where r.lab_id = ${labId} and r.titrant_lot is not null) l) as lots`);
+  const [row] = rowsOf<{ analysts: unknown; lots: unknown }>(res);
+  const parse = <T>(v: unknown): T => (typeof v === 'string' ? JSON.parse(v) : v) as T;
+  return { analysts: parse<{ id: string; name: string }[]>(row.analysts), titrantLots: parse<string[]>(row.lots).sort() };
+}
+
+/** node-postgres and PGlite both answer `execute` with {rows}. */
+function rowsOf<T>(res: unknown): T[] {
+  return ((res as { rows?: T[] }).rows ?? (res as T[])) as T[];
 }
 
 export async function runWithAnalyst(db: Executor, runId: string) {
@@ -231,15 +245,4 @@ export async function managersOf(db: Executor, labId: string) {
 export async function labSettings(db: Executor, labId: string): Promise<Record<string, unknown> | null> {
   const [row] = await db.select({ settings: labs.settings }).from(labs).where(eq(labs.id, labId));
   return (row?.settings as Record<string, unknown>) ?? null;
-}
-
-/** Of these runs, those whose current (highest) revision is approved and locked: sync refuses changes to them. */
-export async function lockedRunIds(db: Executor, runIds: string[]): Promise<Set<string>> {
-  if (!runIds.length) return new Set();
-  const rows = await db
-    .selectDistinctOn([runRevisions.runId], { runId: runRevisions.runId, lockedAt: runRevisions.lockedAt })
-    .from(runRevisions)
-    .where(inArray(runRevisions.runId, runIds))
-    .orderBy(runRevisions.runId, desc(runRevisions.revision));
-  return new Set(rows.filter((r) => r.lockedAt).map((r) => r.runId));
 }

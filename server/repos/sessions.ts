@@ -1,5 +1,6 @@
-import { and, eq, isNull } from 'drizzle-orm';
-import { passwordResets, refreshTokens, sessions, users } from '../../db/schema';
+import { and, eq, isNull, sql } from 'drizzle-orm';
+import { labs, memberships, passwordResets, refreshTokens, sessions, users } from '../../db/schema';
+import type { Role } from '../../shared/schemas/roles';
 import type { Executor } from './executor';
 
 export async function createSession(db: Executor, values: { userId: string; expiresAt: Date; userAgent?: string | null }) {
@@ -48,7 +49,10 @@ export async function revokeUserSessions(db: Executor, userId: string, reason: s
     .where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt)));
 }
 
-/** Session and user state checked on every authenticated request. */
+/**
+ * Session and user state checked on every authenticated request, with the user's labs and roles (by lab name):
+ * one statement, so each request pays one round trip for its access check.
+ */
 export async function sessionState(db: Executor, sessionId: string, userId: string) {
   const [row] = await db
     .select({
@@ -57,11 +61,18 @@ export async function sessionState(db: Executor, sessionId: string, userId: stri
       disabledAt: users.disabledAt,
       email: users.email,
       displayName: users.displayName,
+      labs: sql<unknown>`coalesce((
+        select json_agg(json_build_object('labId', m.lab_id, 'role', m.role, 'labName', l.name, 'isDemo', l.is_demo) order by l.name)
+        from ${memberships} m join ${labs} l on l.id = m.lab_id
+        where m.user_id = ${users.id}), '[]'::json)`,
     })
     .from(sessions)
     .innerJoin(users, eq(users.id, sessions.userId))
     .where(and(eq(sessions.id, sessionId), eq(sessions.userId, userId)));
-  return row;
+  if (!row) return undefined;
+  const list = (typeof row.labs === 'string' ? JSON.parse(row.labs) : row.labs) as { labId: string; role: Role; labName: string; isDemo: boolean }[];
+  // Frozen: the access check caches this and hands it to every request of the session.
+  return Object.freeze({ ...row, labs: Object.freeze(list.map((l) => Object.freeze(l))) });
 }
 
 export async function insertPasswordReset(db: Executor, values: { userId: string; tokenHash: string; expiresAt: Date }) {

@@ -1,5 +1,5 @@
-import { and, asc, eq, gt, inArray, sql } from 'drizzle-orm';
-import { checkpoints, devices, readings, runClockFlags, runEvents, runMetaHistory, runSubmissions, runs, syncChanges } from '../../db/schema';
+import { and, asc, eq, gt, inArray, sql, type SQL } from 'drizzle-orm';
+import { checkpoints, devices, readings, runClockFlags, runEvents, runMetaHistory, runRevisions, runSubmissions, runs, syncChanges } from '../../db/schema';
 import type { Executor } from './executor';
 
 /**
@@ -13,17 +13,18 @@ export async function lockSync(tx: Executor): Promise<void> {
   await tx.execute(sql`select pg_advisory_xact_lock(${SYNC_LOCK})`);
 }
 
-export type DeviceRow = typeof devices.$inferSelect;
-
-/** The device row for this user, created on first push, locked for the rest of the transaction. */
-export async function lockDevice(tx: Executor, id: string, userId: string): Promise<DeviceRow> {
-  await tx.insert(devices).values({ id, userId }).onConflictDoNothing();
-  const [row] = await tx
-    .select()
-    .from(devices)
-    .where(and(eq(devices.id, id), eq(devices.userId, userId)))
-    .for('update');
-  return row;
+/**
+ * The start of every push, in one statement: the sync lock, then the device row for this user (created on first
+ * push), locked for the rest of the transaction (an upsert locks the row it meets like SELECT … FOR UPDATE).
+ */
+export async function lockDevice(tx: Executor, id: string, userId: string): Promise<{ lastSeq: number }> {
+  const res = await tx.execute<{ last_seq: string | number }>(sql`
+    with sync_lock as (select pg_advisory_xact_lock(${SYNC_LOCK}))
+    insert into ${devices} (id, user_id) select ${id}, ${userId} from sync_lock
+    on conflict (id, user_id) do update set user_id = excluded.user_id
+    returning last_seq`);
+  const [row] = rowsOf<{ last_seq: string | number }>(res);
+  return { lastSeq: Number(row.last_seq) };
 }
 
 export async function updateDevice(
@@ -38,12 +39,14 @@ export async function updateDevice(
     .where(and(eq(devices.id, id), eq(devices.userId, userId)));
 }
 
-export async function runsByIds(tx: Executor, ids: string[]) {
+/** The runs a push names: their lab and analyst, and whether their current revision is approved and locked. */
+export async function runsForPush(tx: Executor, ids: string[]) {
   if (!ids.length) return [];
-  return tx
-    .select({ id: runs.id, labId: runs.labId, analystId: runs.analystId, payloadHash: runs.payloadHash })
-    .from(runs)
-    .where(inArray(runs.id, ids));
+  const res = await tx.execute<{ id: string; lab_id: string; analyst_id: string; locked: boolean }>(sql`
+    select r.id, r.lab_id, r.analyst_id,
+      coalesce((select v.locked_at is not null from ${runRevisions} v where v.run_id = r.id order by v.revision desc limit 1), false) as locked
+    from ${runs} r where r.id = any(${`{${ids.join(',')}}`}::uuid[])`);
+  return rowsOf<{ id: string; lab_id: string; analyst_id: string; locked: boolean }>(res).map((r) => ({ id: r.id, labId: r.lab_id, analystId: r.analyst_id, locked: r.locked }));
 }
 
 export async function lockRun(tx: Executor, id: string) {
@@ -62,15 +65,22 @@ export type RowTable = keyof typeof TABLES;
 /** Postgres allows 65,535 bind parameters per statement; stay well below with chunks. */
 const PARAMS_PER_STATEMENT = 30_000;
 
+export interface Inserted {
+  /** Ids that were new (the rest were already stored and are untouched). */
+  ids: Set<string>;
+  /** Highest change-log position taken (readings carry theirs), null when none. */
+  maxSeq: number | null;
+}
+
 /** Inserts with ON CONFLICT DO NOTHING; returns the ids that were new. Existing rows are never touched. */
 export async function insertIgnoringExisting(
   tx: Executor,
   table: RowTable,
   rows: (RunInsert | ReadingInsert | CheckpointInsert | RunEventInsert)[],
-): Promise<Set<string>> {
+): Promise<Inserted> {
   if (table === 'reading') return insertReadingsIgnoringExisting(tx, rows as ReadingInsert[]);
   const inserted = new Set<string>();
-  if (!rows.length) return inserted;
+  if (!rows.length) return { ids: inserted, maxSeq: null };
   const t = TABLES[table];
   const perRow = Object.keys(rows[0]).length || 1;
   const chunk = Math.max(1, Math.floor(PARAMS_PER_STATEMENT / perRow));
@@ -82,34 +92,101 @@ export async function insertIgnoringExisting(
       .returning({ id: t.id })) as { id: string }[];
     for (const r of out) inserted.add(r.id);
   }
-  return inserted;
+  return { ids: inserted, maxSeq: null };
 }
 
-/** A Postgres array literal of text values (quoted, so any text is safe), or NULL elements for null/undefined. */
-function arrayLiteral(values: (string | number | null | undefined)[]): string {
-  return `{${values.map((v) => (v === null || v === undefined ? 'NULL' : `"${String(v).replace(/["\\]/g, (c) => `\\${c}`)}"`)).join(',')}}`;
+const NEEDS_ESCAPE = /["\\]/;
+
+/** One element of a Postgres array literal: text quoted (so any text is safe), numbers as they are, NULL. */
+function element(v: string | number | null | undefined): string {
+  if (v === null || v === undefined) return 'NULL';
+  if (typeof v === 'number') return String(v);
+  return `"${NEEDS_ESCAPE.test(v) ? v.replace(/["\\]/g, (c) => `\\${c}`) : v}"`;
+}
+
+type Cell = string | number | null;
+
+/** The readings columns a push writes, with their Postgres types and how each is read from a row. */
+function readingColumns(now: () => string): [name: string, type: string, get: (r: ReadingInsert) => Cell][] {
+  // A timestamp shared by many rows (the receipt time) is formatted once.
+  let lastDate: unknown = null;
+  let lastIso = '';
+  const iso = (d: unknown): string | null => {
+    if (!(d instanceof Date)) return null;
+    if (d !== lastDate) {
+      lastDate = d;
+      lastIso = d.toISOString();
+    }
+    return lastIso;
+  };
+  return [
+    ['id', 'uuid', (r) => r.id],
+    ['run_id', 'uuid', (r) => r.runId],
+    ['lab_id', 'uuid', (r) => r.labId],
+    ['kind', 'text', (r) => r.kind ?? 'reading'],
+    ['time_s', 'float8', (r) => r.timeS],
+    ['ph', 'float8', (r) => r.pH ?? null],
+    ['mv', 'float8', (r) => r.mV ?? null],
+    ['replaces_id', 'uuid', (r) => r.replacesId ?? null],
+    ['reason', 'text', (r) => r.reason ?? null],
+    ['device_recorded_at', 'timestamptz', (r) => iso(r.deviceRecordedAt)],
+    ['received_at', 'timestamptz', (r) => iso(r.receivedAt) ?? now()],
+    ['payload_hash', 'text', (r) => r.payloadHash ?? null],
+  ];
 }
 
 /**
  * Readings, the bulk of every push, in one statement over unnest(): one parameter per column instead of one per
- * value, which PGlite and PostgreSQL bind and plan several times faster than a many-row VALUES list.
+ * value, which PGlite and PostgreSQL bind and plan several times faster than a many-row VALUES list. A column whose
+ * value is the same on every row (the run, the lab, the receipt time of one push) goes as one value, not an array.
+ * Each new reading takes its change-log position (readings.seq) from the change log's sequence, under the sync lock
+ * like every writer of the log, so pulls meet it in order without a sync_changes row of its own.
  */
-export async function insertReadingsIgnoringExisting(tx: Executor, rows: ReadingInsert[]): Promise<Set<string>> {
-  if (!rows.length) return new Set();
-  const col = <K extends keyof ReadingInsert>(k: K, f: (v: ReadingInsert[K]) => string | number | null = (v) => v as never) =>
-    arrayLiteral(rows.map((r) => f(r[k])));
-  const iso = (d: unknown) => (d instanceof Date ? d.toISOString() : null);
-  const res = await tx.execute<{ id: string }>(sql`
-    insert into ${readings} (id, run_id, lab_id, kind, time_s, ph, mv, replaces_id, reason, device_recorded_at, received_at, payload_hash)
-    select * from unnest(
-      ${col('id')}::uuid[], ${col('runId')}::uuid[], ${col('labId')}::uuid[], ${col('kind', (v) => v ?? 'reading')}::text[],
-      ${col('timeS')}::float8[], ${col('pH')}::float8[], ${col('mV')}::float8[], ${col('replacesId')}::uuid[], ${col('reason')}::text[],
-      ${col('deviceRecordedAt', iso)}::timestamptz[], ${col('receivedAt', (d) => iso(d) ?? new Date().toISOString())}::timestamptz[],
-      ${col('payloadHash')}::text[]
+export async function insertReadingsIgnoringExisting(tx: Executor, rows: ReadingInsert[]): Promise<Inserted> {
+  if (!rows.length) return { ids: new Set(), maxSeq: null };
+  await lockSync(tx);
+  const arrays: SQL[] = [];
+  const names: string[] = [];
+  const selected: SQL[] = [];
+  let ids = '';
+  for (const [name, type, get] of readingColumns(() => new Date().toISOString())) {
+    const first = get(rows[0]);
+    let literal = `{${element(first)}`;
+    let uniform = name !== 'id';
+    for (let i = 1; i < rows.length; i++) {
+      const v = get(rows[i]);
+      if (uniform && v !== first) uniform = false;
+      literal += `,${element(v)}`;
+    }
+    literal += '}';
+    if (name === 'id') ids = literal;
+    if (uniform) {
+      selected.push(sql`${first}::${sql.raw(type)}`);
+    } else {
+      arrays.push(sql`${literal}::${sql.raw(type)}[]`);
+      names.push(name);
+      selected.push(sql.raw(`u.${name}`));
+    }
+  }
+  const columns = sql.raw(readingColumns(() => '').map(([name]) => name).join(', '));
+  // Only a count comes back when every row went in (a push's usual case): 10,000 returned ids cost more to send and
+  // read than the check below, which runs only when some id was already taken.
+  const res = await tx.execute<{ n: number; min_seq: string | number | null; max_seq: string | number | null }>(sql`
+    with ins as (
+      insert into ${readings} (${columns}, seq)
+      select ${sql.join(selected, sql`, `)}, nextval('sync_changes_seq_seq')
+      from unnest(${sql.join(arrays, sql`, `)}) as u(${sql.raw(names.join(', '))})
+      on conflict do nothing
+      returning seq
     )
-    on conflict do nothing
-    returning id`);
-  return new Set(rowsOf<{ id: string }>(res).map((r) => r.id));
+    select count(*)::int as n, min(seq) as min_seq, max(seq) as max_seq from ins`);
+  const [{ n, min_seq, max_seq }] = rowsOf<{ n: number; min_seq: string | number | null; max_seq: string | number | null }>(res);
+  if (!n) return { ids: new Set(), maxSeq: null };
+  if (n === rows.length) return { ids: new Set(rows.map((r) => r.id)), maxSeq: Number(max_seq) };
+  // Some ids were taken: the new rows are those whose place was taken by this statement (rows stored before have a
+  // lower one, or none).
+  const fresh = await tx.execute<{ id: string }>(sql`select id from ${readings} where id = any(${ids}::uuid[]) and seq >= ${Number(min_seq)}`);
+  return { ids: new Set(rowsOf<{ id: string }>(fresh).map((r) => r.id)), maxSeq: Number(max_seq) };
 }
 
 /** Stored payload hashes of these ids in one table (for replays: "already have it" or a conflicting payload). */
@@ -226,20 +303,25 @@ export async function flagRunClocks(tx: Executor, runIds: string[], deviceId: st
 
 // ---------- pull ----------
 
-export async function changesSince(db: Executor, opts: { labIds: string[]; cursor: number; limit: number; runId?: string }) {
+/**
+ * The change log after `cursor`, oldest first: the rows of sync_changes merged with the readings, which carry their
+ * own position (readings.seq). Each side is cut at `limit` before the merge, so the merge's first `limit` are right.
+ */
+export async function changesSince(db: Executor, opts: { labIds: readonly string[]; cursor: number; limit: number; runId?: string }) {
   if (!opts.labIds.length) return [];
-  return db
-    .select({ seq: syncChanges.seq, entity: syncChanges.entity, recordId: syncChanges.recordId })
-    .from(syncChanges)
-    .where(
-      and(
-        inArray(syncChanges.labId, opts.labIds),
-        gt(syncChanges.seq, opts.cursor),
-        opts.runId ? eq(syncChanges.runId, opts.runId) : undefined,
-      ),
-    )
-    .orderBy(asc(syncChanges.seq))
-    .limit(opts.limit);
+  const labs = `{${opts.labIds.join(',')}}`;
+  const res = await db.execute<{ seq: string | number; entity: string; record_id: string }>(sql`
+    select seq, entity, record_id from (
+      (select c.seq, c.entity, c.record_id from ${syncChanges} c
+        where c.lab_id = any(${labs}::uuid[]) and c.seq > ${opts.cursor} ${opts.runId ? sql`and c.run_id = ${opts.runId}` : sql``}
+        order by c.seq limit ${opts.limit})
+      union all
+      (select r.seq, 'reading', r.id from ${readings} r
+        where r.lab_id = any(${labs}::uuid[]) and r.seq > ${opts.cursor} ${opts.runId ? sql`and r.run_id = ${opts.runId}` : sql``}
+        order by r.seq limit ${opts.limit})
+    ) log
+    order by seq limit ${opts.limit}`);
+  return rowsOf<{ seq: string | number; entity: string; record_id: string }>(res).map((r) => ({ seq: Number(r.seq), entity: r.entity, recordId: r.record_id }));
 }
 
 export async function runsWithFlags(db: Executor, ids: string[]) {

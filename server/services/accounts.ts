@@ -63,7 +63,7 @@ async function meOf(db: Executor, user: { id: string; email: string; displayName
 export function meFromCaller(caller: Caller): Me {
   return {
     user: { id: caller.userId, email: caller.email, displayName: caller.displayName },
-    labs: caller.labs,
+    labs: [...caller.labs],
   };
 }
 

@@ -15,7 +15,7 @@ import { buildRunDocument, refillsOf } from '../../src/features/bench/document';
 import { runSetupSchema, type RunSetup } from '../../src/features/bench/setup';
 import type { ServerContext } from '../auth/context';
 import { notFound } from '../http/errors';
-import type { Caller } from '../http/routes';
+import { JsonText, type Caller } from '../http/routes';
 import type { Executor } from '../repos/executor';
 import * as repo from '../repos/runs-desk';
 import * as attachmentsRepo from '../repos/runs-attachments';
@@ -24,30 +24,39 @@ import { isLocked } from './runs-review';
 
 const iso = (d: Date | string | null | undefined) => (d == null ? null : new Date(d).toISOString());
 
-export async function listRuns(app: ServerContext, labId: string, q: RunListQuery): Promise<RunListResponse> {
+/**
+ * The runs table: one page with the total and the filter pickers, as JSON text. Answers are cached per lab until
+ * the lab's runs change (server/services/notified-cache.ts); the pickers are shared by every page and filter.
+ */
+export async function listRuns(app: ServerContext, labId: string, q: RunListQuery): Promise<JsonText> {
   const db = app.database.db;
-  await repo.refreshSummaries(db, labId);
-  const [rows, facets] = await Promise.all([repo.listRuns(db, labId, q), repo.facets(db, labId)]);
-  const stats = new Map((await repo.readingStats(db, rows.map((r) => r.id))).map((s) => [s.runId, s]));
+  return app.labCache.get(labId, `runs:${listKey(q)}`, async () => {
+    const [page, facets] = await Promise.all([runsPage(db, labId, q), app.labCache.get(labId, 'facets', () => repo.facets(db, labId))]);
+    const body: RunListResponse = { ...page, facets };
+    return new JsonText(JSON.stringify(body));
+  });
+}
+
+async function runsPage(db: Executor, labId: string, q: RunListQuery): Promise<Omit<RunListResponse, 'facets'>> {
+  const rows = await repo.listRuns(db, labId, q);
   return {
     rows: rows.map(({ total: _t, ...r }) => ({
       ...r,
       createdAt: r.createdAt.toISOString(),
       updatedAt: r.updatedAt.toISOString(),
-      readingCount: stats.get(r.id)?.count ?? 0,
-      lastReceivedAt: iso(stats.get(r.id)?.last),
+      lastReceivedAt: iso(r.lastReceivedAt),
     })),
-    total: rows[0]?.total ?? (q.page > 1 ? await countOnly(app, labId, q) : 0),
+    // A page past the end has no row to carry the window count.
+    total: rows[0]?.total ?? (q.page > 1 ? await repo.countRuns(db, labId, q) : 0),
     page: q.page,
     pageSize: q.pageSize,
-    facets,
   };
 }
 
-// A page past the end has no row to carry the window count.
-async function countOnly(app: ServerContext, labId: string, q: RunListQuery): Promise<number> {
-  const first = await repo.listRuns(app.database.db, labId, { ...q, page: 1, pageSize: 1 });
-  return first[0]?.total ?? 0;
+/** The parsed query in a fixed key order, so equal queries share one cached answer. */
+function listKey(q: RunListQuery): string {
+  const keys = (Object.keys(q) as (keyof RunListQuery)[]).filter((k) => q[k] !== undefined).sort();
+  return JSON.stringify(keys.map((k) => [k, q[k]]));
 }
 
 type DbReading = Awaited<ReturnType<typeof repo.readingsOf>>[number];

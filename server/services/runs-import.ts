@@ -1,6 +1,7 @@
 import { randomUUID } from 'node:crypto';
 import Papa from 'papaparse';
-import { checkpoints, readings, runs } from '../../db/schema';
+import { checkpoints, runs } from '../../db/schema';
+import { insertReadingsIgnoringExisting } from '../repos/sync';
 import type { ImportMapping, ImportPreview, ImportRowError, ImportSetup } from '../../shared/schemas/desk';
 import { importMappingSchema, importSetupSchema } from '../../shared/schemas/desk';
 import { PH_MAX, PH_MIN } from '../../shared/schemas/run-document';
@@ -154,11 +155,11 @@ export async function importRun(app: ServerContext, caller: Caller, labId: strin
       updatedAt: now,
     });
     const rows = conv.rows.map((r) => ({ id: randomUUID(), runId, labId, kind: 'reading', timeS: r.timeS, pH: r.pH, mV: r.mV, receivedAt: now }));
-    // One multi-row insert per 1,000 rows keeps statements small.
-    for (let i = 0; i < rows.length; i += 1000) await tx.insert(readings).values(rows.slice(i, i + 1000));
     const checkpointId = randomUUID();
     await tx.insert(checkpoints).values({ id: checkpointId, runId, labId, timeS: 0, buretteMl: 0, receivedAt: now });
-    await logRunChange(tx, { labId, runId, readingIds: rows.map((r) => r.id), checkpointIds: [checkpointId] });
+    await logRunChange(tx, { labId, runId, checkpointIds: [checkpointId] });
+    // Readings take their places in sync's change log as they go in (after their run's), so phones pull them.
+    await insertReadingsIgnoringExisting(tx, rows);
     await audit(tx, {
       labId,
       actorId: caller.userId,

@@ -5,6 +5,7 @@ import type { Database } from '../../db/client';
 import { checkpoints, devices, readings, runClockFlags, runMetaHistory, runs } from '../../db/schema';
 import { CLOCK_FLAG_MS, pushRequestSchema } from '../../shared/schemas/sync';
 import { closeTemplate, testDatabase } from '../testing/db';
+import fc from 'fast-check';
 import { canonicalJson, pull, push } from './sync';
 import { fakeDevice, syncWorld } from './sync.testkit';
 
@@ -26,6 +27,28 @@ describe('canonical payload hash', () => {
   it('ignores key order but not values', () => {
     expect(canonicalJson({ b: 1, a: { d: [1, 2], c: null } })).toBe(canonicalJson({ a: { c: null, d: [1, 2] }, b: 1 }));
     expect(canonicalJson({ a: 1 })).not.toBe(canonicalJson({ a: 2 }));
+  });
+
+  // Stored payload hashes depend on every byte: the output must stay that of the first implementation (kept here).
+  const firstCanonicalJson = (value: unknown): string => {
+    if (value === null || typeof value !== 'object') return JSON.stringify(value) ?? 'null';
+    if (Array.isArray(value)) return `[${value.map(firstCanonicalJson).join(',')}]`;
+    const obj = value as Record<string, unknown>;
+    const keys = Object.keys(obj)
+      .filter((k) => obj[k] !== undefined)
+      .sort();
+    return `{${keys.map((k) => `${JSON.stringify(k)}:${firstCanonicalJson(obj[k])}`).join(',')}}`;
+  };
+
+  it('writes exactly what the first implementation wrote, for any JSON and for undefined members', () => {
+    fc.assert(
+      fc.property(fc.oneof(fc.jsonValue(), fc.object({ values: [fc.constant(undefined), fc.integer(), fc.string()] })), (v) => {
+        expect(canonicalJson(v)).toBe(firstCanonicalJson(v));
+      }),
+      { numRuns: 500 },
+    );
+    // eslint-disable-next-line no-sparse-arrays
+    expect(canonicalJson([1, , 2])).toBe(firstCanonicalJson([1, , 2]));
   });
 });
 
@@ -136,6 +159,24 @@ describe('replays of one batch', () => {
     expect(outcomes[0].every((o) => o === 'accepted')).toBe(true);
     for (const o of outcomes.slice(1)) expect(o.every((x) => x === 'duplicate')).toBe(true);
     expect(await rowsPerId(ids)).toBe(50);
+  });
+
+  it('a batch mixing stored readings (sent before by another device) with new ones: each answered for itself, pulled once', async () => {
+    const { analyst, batch, ids, runId } = await batchOf(5);
+    expect((await push(w.deps, analyst, batch)).results.every((r) => r.outcome === 'accepted')).toBe(true);
+    const other = fakeDevice();
+    const sent = batch.changes.slice(1);
+    const again = sent.slice(0, 2).map((c) => other.change('reading', c.payload, { id: c.id }));
+    const changed = other.change('reading', { ...(sent[2].payload as object), pH: 9.99 }, { id: sent[2].id });
+    const fresh = [other.change('reading', { runId, timeS: 100, pH: 7 }), other.change('reading', { runId, timeS: 101, pH: 7.1 })];
+    const res = await push(w.deps, analyst, other.batch([again[0], fresh[0], changed, again[1], fresh[1]]));
+    expect(res.results.map((r) => r.outcome)).toEqual(['duplicate', 'accepted', 'conflict', 'duplicate', 'accepted']);
+    expect(await rowsPerId([...ids, ...fresh.map((c) => c.id)])).toBe(7);
+    const [kept] = await database.db.select().from(readings).where(eq(readings.id, sent[2].id));
+    expect(kept.pH).toBe((sent[2].payload as { pH: number }).pH);
+    const pulled = await pull(w.deps, analyst, { cursor: 0, limit: 5000, runId });
+    const readingIds = pulled.changes.filter((c) => c.entity === 'reading').map((c) => (c.record as { id: string }).id);
+    expect(readingIds.sort()).toEqual([...ids, ...fresh.map((c) => c.id)].sort());
   });
 
   it(`concurrently (${process.env.TEST_DATABASE_URL ? 'PostgreSQL server' : 'PGlite'}): exactly one row per id, each accepted once`, async () => {

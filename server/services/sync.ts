@@ -1,4 +1,4 @@
-import { createHash } from 'node:crypto';
+import crypto from 'node:crypto';
 import type { z } from 'zod';
 import {
   CLOCK_FLAG_MS,
@@ -17,7 +17,7 @@ import type { Role } from '../../shared/schemas/roles';
 import type { Database } from '../../db/client';
 import type { Executor } from '../repos/executor';
 import * as repo from '../repos/sync';
-import { lockedRunIds, runWithAnalyst } from '../repos/runs-desk';
+import { runWithAnalyst } from '../repos/runs-desk';
 import { mailManagersOnSubmission } from './runs-review';
 
 /**
@@ -40,7 +40,7 @@ import { mailManagersOnSubmission } from './runs-review';
 export interface SyncCaller {
   userId: string;
   roleIn(labId: string): Role | undefined;
-  labs: { labId: string }[];
+  labs: readonly { labId: string }[];
 }
 
 export interface SyncDeps {
@@ -56,20 +56,38 @@ export const LIVE_CHANNEL = 'halfmark_live';
 
 const WRITE_ROLES: readonly Role[] = ['analyst', 'manager'];
 
-/** JSON with object keys sorted at every level, so equal payloads hash equally whatever the key order. */
+/**
+ * JSON with object keys sorted at every level, so equal payloads hash equally whatever the key order. Stored hashes
+ * depend on every byte of it: keep the output exactly as it is (a hole in an array is empty, an undefined member left
+ * out). Written as loops because it runs once per change of every push.
+ */
 export function canonicalJson(value: unknown): string {
   if (value === null || typeof value !== 'object') return JSON.stringify(value) ?? 'null';
-  if (Array.isArray(value)) return `[${value.map(canonicalJson).join(',')}]`;
+  if (Array.isArray(value)) {
+    let out = '[';
+    for (let i = 0; i < value.length; i++) out += (i ? ',' : '') + (i in value ? canonicalJson(value[i]) : '');
+    return `${out}]`;
+  }
   const obj = value as Record<string, unknown>;
-  const keys = Object.keys(obj)
-    .filter((k) => obj[k] !== undefined)
-    .sort();
-  return `{${keys.map((k) => `${JSON.stringify(k)}:${canonicalJson(obj[k])}`).join(',')}}`;
+  const keys = Object.keys(obj).sort();
+  let out = '{';
+  for (const k of keys) {
+    const v = obj[k];
+    if (v === undefined) continue;
+    out += `${out.length > 1 ? ',' : ''}${JSON.stringify(k)}:${canonicalJson(v)}`;
+  }
+  return `${out}}`;
 }
 
 export function payloadHash(kind: EntityKind, payload: unknown): string {
-  return createHash('sha256').update(`${kind}\n${canonicalJson(payload)}`).digest('hex');
+  return sha256Hex(`${kind}\n${canonicalJson(payload)}`);
 }
+
+// Node's one-shot hash (20.12+) skips a Hash object per call; the same digest either way.
+const sha256Hex: (text: string) => string =
+  typeof (crypto as { hash?: unknown }).hash === 'function'
+    ? (text) => (crypto as unknown as { hash(alg: string, data: string, enc: 'hex'): string }).hash('sha256', text, 'hex')
+    : (text) => crypto.createHash('sha256').update(text).digest('hex');
 
 type Parsed<K extends EntityKind> = z.infer<(typeof payloadSchemas)[K]>;
 
@@ -105,7 +123,6 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
   const clockFlagged = Math.abs(clockOffsetMs) > CLOCK_FLAG_MS;
 
   return deps.database.db.transaction(async (tx) => {
-    await repo.lockSync(tx);
     const device = await repo.lockDevice(tx, req.deviceId, caller.userId);
     const results: ChangeResult[] = new Array(req.changes.length);
     const log: repo.ChangeLogRow[] = [];
@@ -161,9 +178,12 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       if (it.change.kind === 'run') referenced.add(it.change.id);
       else if (d.runId) referenced.add(d.runId);
     }
-    for (const r of await repo.runsByIds(tx, [...referenced])) runInfo.set(r.id, r);
     // An approved revision is a signed record: nothing is added to or changed in it until a new revision is opened.
-    const locked = await lockedRunIds(tx, [...runInfo.keys()]);
+    const locked = new Set<string>();
+    for (const r of await repo.runsForPush(tx, [...referenced])) {
+      runInfo.set(r.id, { labId: r.labId, analystId: r.analystId });
+      if (r.locked) locked.add(r.id);
+    }
     let mailed = false;
 
     const mayWrite = (labId: string, analystId: string): string | null => {
@@ -191,9 +211,19 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       }
       return { id: runId, ...run };
     };
+    /** Highest change-log position this batch took (readings carry theirs themselves: no change-log row). */
+    let maxSeq: number | null = null;
+    const logChanged = (seq: number | null) => {
+      if (seq !== null) maxSeq = Math.max(maxSeq ?? 0, seq);
+    };
+    const inserting = async (table: repo.RowTable, rows: Parameters<typeof repo.insertIgnoringExisting>[2]) => {
+      const done = await repo.insertIgnoringExisting(tx, table, rows);
+      logChanged(done.maxSeq);
+      return done.ids;
+    };
     const accepted = (it: Item, entity: string, recordId: string, labId: string, runId: string | null) => {
       answer(it, 'accepted', 201);
-      log.push({ labId, entity, recordId, runId });
+      if (entity !== 'reading') log.push({ labId, entity, recordId, runId });
       if (runId) touchedRuns.add(runId);
       lastLab = labId;
     };
@@ -224,7 +254,7 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
         });
         pending.push(it);
       }
-      const inserted = await repo.insertIgnoringExisting(tx, 'run', rows);
+      const inserted = await inserting('run', rows);
       const taken: Item[] = [];
       for (const it of pending) {
         const d = it.data as Parsed<'run'>;
@@ -234,6 +264,8 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
         } else taken.push(it);
       }
       if (taken.length) await settleTaken('run', taken);
+      // New runs go into the change log now, before their readings take their places: pulls meet a run first.
+      logChanged(await repo.logChanges(tx, log.splice(0)));
     }
 
     // 2. Readings, checkpoints, run events: immutable rows, bulk inserted.
@@ -248,7 +280,7 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
         rows.push(build(it, d, run.labId));
         pending.push({ it, labId: run.labId, runId: run.id });
       }
-      const inserted = await repo.insertIgnoringExisting(tx, kind, rows as never);
+      const inserted = await inserting(kind, rows as never);
       const taken: Item[] = [];
       for (const p of pending) {
         if (inserted.has(p.it.change.id)) accepted(p.it, kind, p.it.change.id, p.labId, p.runId);
@@ -263,7 +295,19 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       receivedAt,
       payloadHash: it.hash,
     });
-    await rowsStage('reading', (it, d, labId) => ({ ...common(it, labId), runId: d.runId, kind: 'reading', timeS: d.timeS, pH: d.pH, mV: d.mV }));
+    // Readings are most of a push: their rows are written out whole (no spread of a shared part per row).
+    await rowsStage('reading', (it, d, labId) => ({
+      id: it.change.id,
+      labId,
+      deviceRecordedAt: dateOrNull(it.change.recordedAt),
+      receivedAt,
+      payloadHash: it.hash,
+      runId: d.runId,
+      kind: 'reading',
+      timeS: d.timeS,
+      pH: d.pH,
+      mV: d.mV,
+    }));
     await rowsStage('checkpoint', (it, d, labId) => ({ ...common(it, labId), runId: d.runId, timeS: d.timeS, buretteMl: d.buretteMl }));
     await rowsStage('run_event', (it, d, labId) => ({ ...common(it, labId), runId: d.runId, kind: d.kind, timeS: d.timeS, detail: d.detail }));
 
@@ -298,7 +342,7 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
           d.of === 'reading'
             ? { ...base, kind: d.withdraw ? 'deletion' : 'correction', pH: d.withdraw ? null : (d.pH ?? null), mV: d.withdraw ? null : (d.mV ?? null) }
             : { ...base, buretteMl: d.withdraw ? null : (d.buretteMl ?? null) };
-        const inserted = await repo.insertIgnoringExisting(tx, d.of, [row as never]);
+        const inserted = await inserting(d.of, [row as never]);
         if (inserted.has(it.change.id)) accepted(it, d.of, it.change.id, run.labId, run.id);
         else answer(it, 'conflict', 409, 'A different record is already stored under this id; it was left unchanged.');
       }
@@ -403,7 +447,7 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       lastLab = run.labId;
     }
 
-    const maxSeq = await repo.logChanges(tx, log);
+    logChanged(await repo.logChanges(tx, log));
     if (clockFlagged) await repo.flagRunClocks(tx, [...touchedRuns], req.deviceId, clockOffsetMs, receivedAt);
     if (maxSeq !== null) await repo.notifyRuns(tx, LIVE_CHANNEL, [...touchedRuns].map((r) => `${r}:${maxSeq}`));
     const lastSeq = Math.max(device.lastSeq, req.changes[req.changes.length - 1].seq);

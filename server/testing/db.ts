@@ -33,6 +33,13 @@ async function freshPostgres(adminUrl: string): Promise<Database> {
     await close();
     const again = new pg.Client({ connectionString: adminUrl });
     await again.connect();
+    // pool.end() answers before its connections have gone: wait for them (up to 5 s), so the forced drop does not
+    // kill a connection still closing, whose error would then surface in the test run.
+    for (let i = 0; i < 100; i++) {
+      const [{ n }] = (await again.query('select count(*)::int as n from pg_stat_activity where datname = $1', [name])).rows;
+      if (!n) break;
+      await new Promise((r) => setTimeout(r, 50));
+    }
     await again.query(`drop database if exists ${name} with (force)`);
     await again.end();
   };

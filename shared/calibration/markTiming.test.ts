@@ -56,7 +56,8 @@ describe('mark-timing drain fit', () => {
 
   it('agrees with scipy.optimize.curve_fit 1.17.1 on noisy taps (cross-check with a reference library)', () => {
     // Times: model q0 = 0.12 mL/s, Vh = 150 mL, plus fixed perturbations, rounded to 0.1 s (as in the python script
-    // that produced the expected values: curve_fit(V(1 − exp(−q x/V)), p0 = [0.1, 100]), default covariance scaling).
+    // that produced the expected values: curve_fit(V(1 − exp(−q x/V)), t[1:], V[1:], p0 = [0.1, 100]), default
+    // covariance scaling — the first tap is the origin, which the model passes through exactly, so it is left out).
     const times = [0.0, 42.7, 86.0, 131.9, 178.5, 228.2, 279.0, 331.8, 387.9, 445.7, 507.1];
     const pts = times.map((t, i) => ({ timeS: t, buretteMl: 5 * i }));
     const r = fitBuretteDrain({ points: pts });

@@ -15,7 +15,10 @@ import { budgetRowSchema, standardizeInputSchema } from './run-document';
 
 const text = (max: number) => z.string().trim().max(max, `at most ${max} characters`);
 const identifier = z.string().trim().min(1, 'identifier is required').max(80, 'at most 80 characters');
-const isoTime = z.iso.datetime({ offset: true, error: 'expected a date and time (ISO 8601)' });
+// Year 0000 passes ISO 8601 but is no year PostgreSQL stores (its calendar goes from 1 BC to AD 1).
+const isoTime = z.iso
+  .datetime({ offset: true, error: 'expected a date and time (ISO 8601)' })
+  .refine((s) => Date.parse(s) >= Date.parse('0001-01-01T00:00:00Z'), 'expected a date from the year 0001 on');
 
 // ---------- lab settings: acceptance limits and ages ----------
 

@@ -10,7 +10,8 @@ export const RUN_SORTS = ['date', 'sample', 'analyst', 'status', 've', 'pka'] as
 export const runSortSchema = z.enum(RUN_SORTS);
 export type RunSort = z.infer<typeof runSortSchema>;
 
-const isoDay = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'a date as YYYY-MM-DD');
+// A real calendar day (not 2024-02-30 or 9999-99-99), from the year 0001 on: PostgreSQL has no year 0000.
+const isoDay = z.iso.date('a date as YYYY-MM-DD').refine((s) => s >= '0001-01-01', 'a date from the year 0001 on');
 
 export const runListQuerySchema = z.object({
   page: z.coerce.number().int().min(1).max(100_000).default(1),

@@ -10,8 +10,12 @@ import { z } from 'zod';
  */
 
 const uuid = z.uuid();
-/** Milliseconds since the epoch on the device's clock (may be days off). */
-const deviceMs = z.number().int().nonnegative();
+/**
+ * Milliseconds since the epoch on the device's clock (may be days off). At most the end of the year 9999: a Date
+ * after it is written with a six-digit year (ECMA-262, Date Time String Format), which PostgreSQL does not read.
+ */
+const DEVICE_MS_MAX = Date.UTC(9999, 11, 31, 23, 59, 59, 999);
+const deviceMs = z.number().int().nonnegative().max(DEVICE_MS_MAX);
 const finite = z.number().finite();
 /** pH meters in this trade read about −2…16; anything beyond is a typing error. Common practice, not a standard. */
 const pH = finite.min(-2).max(16);
@@ -102,14 +106,24 @@ export const submissionPayloadSchema = z.object({
 export const entityKindSchema = z.enum(['run', 'reading', 'checkpoint', 'correction', 'run_event', 'run_meta_edit', 'submission']);
 export type EntityKind = z.infer<typeof entityKindSchema>;
 
+/** True when a string (or any key or string inside) holds U+0000, which PostgreSQL cannot store in text or jsonb. */
+export function holdsNul(v: unknown): boolean {
+  if (typeof v === 'string') return v.includes('\u0000');
+  if (Array.isArray(v)) return v.some(holdsNul);
+  if (v && typeof v === 'object') return Object.entries(v).some(([k, x]) => k.includes('\u0000') || holdsNul(x));
+  return false;
+}
+/** A payload holding U+0000 is rejected like any bad payload: that change only, not the whole batch. */
+const storable = <T extends z.ZodType>(schema: T) => schema.refine((p) => !holdsNul(p), { message: 'Text cannot contain the NUL character (U+0000).' });
+
 export const payloadSchemas = {
-  run: runPayloadSchema,
-  reading: readingPayloadSchema,
-  checkpoint: checkpointPayloadSchema,
-  correction: correctionPayloadSchema,
-  run_event: runEventPayloadSchema,
-  run_meta_edit: runMetaEditPayloadSchema,
-  submission: submissionPayloadSchema,
+  run: storable(runPayloadSchema),
+  reading: storable(readingPayloadSchema),
+  checkpoint: storable(checkpointPayloadSchema),
+  correction: storable(correctionPayloadSchema),
+  run_event: storable(runEventPayloadSchema),
+  run_meta_edit: storable(runMetaEditPayloadSchema),
+  submission: storable(submissionPayloadSchema),
 } as const;
 
 /**

@@ -7,7 +7,8 @@ export { ApiRequestError };
 
 const BASE = '/api';
 
-async function parseError(res: Response): Promise<ApiRequestError> {
+/** The server's error shape of a failed response as an ApiRequestError. */
+export async function parseError(res: Response): Promise<ApiRequestError> {
   let body: unknown;
   try {
     body = await res.json();
@@ -65,30 +66,40 @@ export interface RequestOptions {
   anonymous?: boolean;
 }
 
-/** JSON request to the API with the access token; on 401 it refreshes once through the cookie and retries. */
-export async function api<T>(path: string, opts: RequestOptions = {}): Promise<T> {
+/**
+ * A request to the API with the access token (refreshed ahead of expiry, and once more on a 401), answering the raw
+ * Response: for bodies read as a stream (the live follow of a run) as well as JSON.
+ */
+export async function authorizedFetch(path: string, init: RequestInit & { anonymous?: boolean } = {}): Promise<Response> {
+  const { anonymous, headers, ...rest } = init;
   const send = (token: string | null) =>
-    rawFetch(path, {
-      method: opts.method ?? 'GET',
-      headers: {
-        accept: 'application/json',
-        ...(opts.body !== undefined ? { 'content-type': 'application/json' } : {}),
-        ...(token && !opts.anonymous ? { authorization: `Bearer ${token}` } : {}),
-      },
-      body: opts.body !== undefined ? JSON.stringify(opts.body) : undefined,
-    });
+    rawFetch(path, { ...rest, headers: { ...(headers as Record<string, string>), ...(token && !anonymous ? { authorization: `Bearer ${token}` } : {}) } });
 
   let token = useSession.getState().accessToken;
   const expiresAt = useSession.getState().accessTokenExpiresAt;
   // Refresh ahead of expiry (or after a reload, when only the cookie is left) instead of waiting for a 401.
-  if (!opts.anonymous && (!token || (expiresAt && Date.parse(expiresAt) - Date.now() < 30_000))) {
+  if (!anonymous && (!token || (expiresAt && Date.parse(expiresAt) - Date.now() < 30_000))) {
     token = (await refreshSession())?.accessToken ?? token;
   }
   let res = await send(token);
-  if (res.status === 401 && !opts.anonymous) {
+  if (res.status === 401 && !anonymous) {
     const again = await refreshSession();
     if (again) res = await send(again.accessToken);
   }
+  return res;
+}
+
+/** JSON request to the API with the access token; on 401 it refreshes once through the cookie and retries. */
+export async function api<T>(path: string, opts: RequestOptions = {}): Promise<T> {
+  const res = await authorizedFetch(path, {
+    method: opts.method ?? 'GET',
+    anonymous: opts.anonymous,
+    headers: {
+      accept: 'application/json',
+      ...(opts.body !== undefined ? { 'content-type': 'application/json' } : {}),
+    },
+    body: opts.body !== undefined ? JSON.stringify(opts.body) : undefined,
+  });
   if (!res.ok) throw await parseError(res);
   if (res.status === 204) return undefined as T;
   return (await res.json()) as T;

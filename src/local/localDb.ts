@@ -1,6 +1,7 @@
 // Opens the local database once per page: owner lock → open → migrate → read back a test write → storage check.
 // Screens read the state with useLocalDb(); nothing records unless the state is 'ready'.
-import { openDatabaseAsync } from 'expo-sqlite';
+// The database file of expo-sqlite: its index adds SQLiteProvider and, through it, expo-asset (metro.config.js).
+import { openDatabaseAsync } from 'expo-sqlite/build/SQLiteDatabase.js';
 import { useSyncExternalStore } from 'react';
 import { migrate } from './migrations';
 import { acquireOwnerLock } from './ownerLock';

@@ -1,4 +1,5 @@
-import { QueryClient } from '@tanstack/react-query';
+// QueryClient's own file: the package index would bring all of react-query to the first screen (metro.config.js).
+import { QueryClient } from '@tanstack/query-core/build/modern/queryClient.js';
 
 export function makeQueryClient(): QueryClient {
   return new QueryClient({

@@ -97,7 +97,8 @@ export class SyncEngine {
     opts: EngineOptions = {},
   ) {
     this.o = {
-      batchSize: 1000,
+      // Each reading's mark has an outbox row of its own that never goes out: twice MAX_BATCH rows fill one push.
+      batchSize: 2 * MAX_BATCH,
       maxChanges: MAX_BATCH,
       pull: true,
       pullLimit: 1000,

@@ -10,6 +10,10 @@ export class MemoryDevice implements SyncStore {
   runs = new Map<string, RunRow>();
   readings = new Map<string, ReadingRow>();
   outbox: OutboxRow[] = [];
+  /** The outbox rows by seq: settling a 10,000-row push would otherwise search the outbox once per row. */
+  private outboxBySeq = new Map<number, OutboxRow>();
+  /** Each row's payload as JSON text, as the device's SQLite outbox keeps it (payload_json). */
+  private payloadJson = new Map<number, string>();
   /** Records pulled from the server, by entity and id. */
   pulled = new Map<string, Map<string, unknown>>();
   conflicts: (Settlement['meta'] & object)[number][] = [];
@@ -26,7 +30,10 @@ export class MemoryDevice implements SyncStore {
   }
 
   private queue(entity: OutboxRow['entity'], recordId: string, op: OutboxRow['op'], payload: unknown) {
-    this.outbox.push({ seq: ++this.seq, entity, recordId, op, payload: structuredClone(payload), createdWallMs: this.wall(), state: 'pending', attempts: 0, lastError: null });
+    const row: OutboxRow = { seq: ++this.seq, entity, recordId, op, payload: structuredClone(payload), createdWallMs: this.wall(), state: 'pending', attempts: 0, lastError: null };
+    this.outbox.push(row);
+    this.outboxBySeq.set(row.seq, row);
+    this.payloadJson.set(row.seq, JSON.stringify(payload));
   }
 
   createRun(labId: string, label = 'KHP demo run'): RunRow {
@@ -63,14 +70,20 @@ export class MemoryDevice implements SyncStore {
   // ---------- SyncStore ----------
 
   async pendingOutbox(limit: number) {
-    return this.outbox.filter((o) => o.state === 'pending' || o.state === 'sent').slice(0, limit).map((o) => structuredClone(o));
+    const out: OutboxRow[] = [];
+    for (const o of this.outbox) {
+      if (out.length >= limit) break;
+      // Fresh copies with the payload decoded from its JSON text, as the SQLite store hands them out.
+      if (o.state === 'pending' || o.state === 'sent') out.push({ ...o, payload: JSON.parse(this.payloadJson.get(o.seq)!) });
+    }
+    return out;
   }
   async runLab(runId: string) {
     return this.runs.get(runId)?.labId ?? null;
   }
   async settle(list: Settlement[]) {
     for (const s of list) {
-      const row = this.outbox.find((o) => o.seq === s.seq)!;
+      const row = this.outboxBySeq.get(s.seq)!;
       row.state = s.state;
       row.lastError = s.reason ?? null;
       for (const m of s.meta ?? []) {

@@ -1,68 +1,46 @@
-// One sync engine per page, started when the local database is open and someone is signed in. Its status feeds the
-// indicator; its waiting count goes to the session store so signing out can warn.
+// The sync as the page sees it: the status the indicator shows, and its waiting count in the session store so
+// signing out can warn. The engine itself (syncHost.ts) is loaded and started once the local database is open and
+// someone is signed in, so a first visit draws the bench without downloading it.
 import { useEffect, useSyncExternalStore } from 'react';
-import { refreshSession } from '../api/client';
 import { useLocalDb } from '../local/localDb';
-import type { LocalStore } from '../local/store';
 import { useSession } from '../state/session';
-import { SyncEngine, type SyncStatus } from './engine';
-import { httpTransport } from './httpTransport';
-import { openSyncStore, type SqliteSyncStore } from './localStore';
-import { isOnline, onOnline } from './network';
+import type { SyncStatus } from './engine';
 
-let engine: SyncEngine | null = null;
-let store: SqliteSyncStore | null = null;
-let owner: LocalStore | null = null;
+type Host = typeof import('./syncHost');
+
 let status: SyncStatus | null = null;
-let unCommitted: (() => void) | null = null;
-let pushTimer: ReturnType<typeof setTimeout> | null = null;
+let host: Promise<Host> | null = null;
 const listeners = new Set<() => void>();
 
-/**
- * A recorded write is sent soon after it commits, so a colleague following the run sees it within a second or two;
- * a short delay gathers a burst of taps into one push.
- */
-const PUSH_DELAY_MS = 400;
-
-async function startFor(local: LocalStore) {
-  if (owner === local) return;
-  engine?.stop();
-  unCommitted?.();
-  owner = local;
-  unCommitted = local.onCommitted(() => {
-    if (pushTimer !== null) return;
-    pushTimer = setTimeout(() => {
-      pushTimer = null;
-      requestSync();
-    }, PUSH_DELAY_MS);
-  });
-  store = await openSyncStore(local, { defaultLab: () => useSession.getState().activeLabId });
-  engine = new SyncEngine(
-    store,
-    httpTransport({
-      accessToken: async () => useSession.getState().accessToken,
-      refresh: async () => (await refreshSession())?.accessToken ?? null,
-    }),
-    { isOnline, onOnline, log: (msg, err) => console.warn(`[sync] ${msg}`, err) },
-  );
-  engine.subscribe((s) => {
-    status = s;
-    useSession.getState().setUnsynced(s.waiting);
-    for (const l of listeners) l();
-  });
-  engine.start();
+/** Called by the engine on every status change. */
+export function publishStatus(s: SyncStatus): void {
+  status = s;
+  useSession.getState().setUnsynced(s.waiting);
+  for (const l of listeners) l();
 }
 
-/** Ask for a sync now (after a reading is saved, say); cheap when one is running (single-flight). */
+function loadHost(): Promise<Host> {
+  // A failed download (offline before the service worker had the file) is tried again on the next change.
+  host ??= import('./syncHost').catch((err) => {
+    host = null;
+    throw err;
+  });
+  return host;
+}
+
+/** Ask for a sync now (after a reading is saved, say); nothing until the engine has started. */
 export function requestSync(): void {
-  void engine?.sync();
+  void host?.then((h) => h.requestSync());
 }
 
 export function useSyncStatus(): { status: SyncStatus | null; signedIn: boolean; rejected: () => Promise<{ reason: string | null; entity: string }[]> } {
   const local = useLocalDb();
   const signedIn = useSession((s) => s.user !== null);
   useEffect(() => {
-    if (local.status === 'ready' && signedIn) void startFor(local.store);
+    if (local.status !== 'ready' || !signedIn) return;
+    loadHost()
+      .then((h) => h.startFor(local.store))
+      .catch((err) => console.warn('[sync] the sync could not start; recording goes on locally', err));
   }, [local, signedIn]);
   const s = useSyncExternalStore(
     (l) => {
@@ -72,5 +50,5 @@ export function useSyncStatus(): { status: SyncStatus | null; signedIn: boolean;
     () => status,
     () => null,
   );
-  return { status: s, signedIn, rejected: async () => (store ? store.rejected() : []) };
+  return { status: s, signedIn, rejected: async () => (host ? (await host).rejected() : []) };
 }

@@ -12,15 +12,17 @@ export interface ScreenProps {
   children?: ReactNode;
   /** Screens with their own scrolling (tables, live charts) opt out. */
   scroll?: boolean;
+  /** `form`: a narrow centred column (sign-in and other short forms), instead of the page's wide one. */
+  width?: 'page' | 'form';
   testID?: string;
 }
 
 /** The frame of every section: a title row and a readable column that widens on a desk screen. */
-export function Screen({ title, subtitle, actions, children, scroll = true, testID }: ScreenProps) {
+export function Screen({ title, subtitle, actions, children, scroll = true, width = 'page', testID }: ScreenProps) {
   const size = useLayoutSize();
   const pad = size === 'phone' ? space.lg : space.xxl;
   const body = (
-    <View style={[styles.column, { padding: pad }]}>
+    <View style={[styles.column, width === 'form' && styles.form, { padding: pad }]}>
       <View style={styles.head}>
         <View style={styles.headText}>
           <Text variant="title" accessibilityRole="header" aria-level={1}>
@@ -48,6 +50,8 @@ const styles = StyleSheet.create({
   page: { flex: 1, backgroundColor: colors.paper },
   scroll: { flexGrow: 1 },
   column: { width: '100%', maxWidth: 1200, alignSelf: 'center', gap: space.lg },
+  // A line of about 60 characters: a form wider than that is harder to scan on a desk screen.
+  form: { maxWidth: 560 },
   head: { flexDirection: 'row', alignItems: 'flex-start', justifyContent: 'space-between', gap: space.md, flexWrap: 'wrap' },
   headText: { flexShrink: 1, gap: space.xs },
   actions: { flexDirection: 'row', gap: space.sm, flexWrap: 'wrap' },

@@ -1,7 +1,11 @@
 /**
  * Sync throughput (issue 6): 10,000 readings recorded offline on one device, then pushed through the real HTTP API
  * over loopback by the real sync engine until every outbox row is acknowledged. Goal ≤ 3 s. Compared with a raw
- * multi-row INSERT of the same rows into the same database in the same run. Goal: ratio ≤ 2.
+ * multi-row INSERT of the same rows into the same table of the same database in the same run, written the fastest
+ * way we know: both a VALUES list (chunked under the 65,535-parameter limit) and one INSERT … SELECT FROM unnest()
+ * are measured, and the goal ratio (≤ 2) is taken against the faster of the two. COPY FROM a CSV blob (not an INSERT)
+ * is reported beside them. The raw inserts store the same columns the push stores (readings.seq included, from the
+ * same sequence), without the protocol: no idempotency check, no change log, no locks.
  * Database: in-memory PGlite (what tests use); median of 3 measured rounds after one warm-up round.
  */
 import type { AddressInfo } from 'node:net';
@@ -11,7 +15,6 @@ import { labs, memberships, readings, runs, users } from '../../db/schema';
 import { createApp } from '../../server/app';
 import { createServerContext } from '../../server/auth/context';
 import * as sessionsRepo from '../../server/repos/sessions';
-import { insertReadingsIgnoringExisting } from '../../server/repos/sync';
 import { SyncEngine } from '../../src/sync/engine';
 import { httpTransport } from '../../src/sync/httpTransport';
 import { MemoryDevice } from '../../src/sync/memoryStore';
@@ -20,10 +23,18 @@ const N = 10_000;
 const PORT = 8313;
 const SECRET = 'bench-only-secret-not-for-any-deployment-0001';
 const log = (...a: unknown[]) => console.error(...a);
+const RAW = ['values', 'unnest', 'copy'] as const;
+type Raw = (typeof RAW)[number];
+
+const cpuSince = (c0: NodeJS.CpuUsage) => {
+  const c = process.cpuUsage(c0);
+  return (c.user + c.system) / 1000;
+};
 
 // The root package is CommonJS: no top-level await.
 async function main() {
   const database = await openDatabase({ kind: 'pglite' });
+  const pg = database.pglite!;
   const [lab] = await database.db.insert(labs).values({ name: 'Bench lab (demo)' }).returning();
   const [user] = await database.db.insert(users).values({ email: 'bench@example.org', displayName: 'Bench analyst' }).returning();
   await database.db.insert(memberships).values({ labId: lab.id, userId: user.id, role: 'analyst' });
@@ -32,28 +43,48 @@ async function main() {
   const session = await sessionsRepo.createSession(database.db, { userId: user.id, expiresAt: new Date(Date.now() + 86_400_000) });
   const token = (await (await ctx.signer()).sign({ userId: user.id, sessionId: session.id })).token;
   const server = createApp(deps).listen(PORT, '127.0.0.1');
+  // The raw rounds keep the (shared) event loop busy for seconds between sync rounds; with the default 5 s the
+  // server may close an idle keep-alive connection just as the next round's first push reuses it ("fetch failed").
+  server.keepAliveTimeout = 120_000;
   await new Promise((r) => server.once('listening', r));
   const baseUrl = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
 
-  async function syncRound(): Promise<number> {
+  async function syncRound(): Promise<{ ms: number; cpuMs: number; requestsMs: number; requests: number }> {
     const device = new MemoryDevice(user.id);
     const run = device.createRun(lab.id, 'bench run (demo)');
     for (let i = 0; i < N; i++) device.addReading(run.id, i * 0.5, 3 + (i % 900) / 100);
-    const engine = new SyncEngine(device, httpTransport({ baseUrl, accessToken: async () => token }), { pull: false, setTimer: () => null, clearTimer: () => {} });
+    // Time spent inside push requests (server work, loopback, the answer read as text) apart from the device's own.
+    let requestsMs = 0;
+    let requests = 0;
+    const timed: typeof fetch = async (input, init) => {
+      const t = performance.now();
+      const res = await fetch(input, init);
+      const text = await res.text();
+      requestsMs += performance.now() - t;
+      requests++;
+      return new Response(text, { status: res.status, headers: res.headers });
+    };
+    const engine = new SyncEngine(device, httpTransport({ baseUrl, accessToken: async () => token, fetch: timed }), { pull: false, setTimer: () => null, clearTimer: () => {} });
     const t0 = performance.now();
+    const c0 = process.cpuUsage();
     await engine.sync();
     const ms = performance.now() - t0;
+    const cpuMs = cpuSince(c0);
     const left = device.outbox.filter((o) => o.state !== 'acked');
     if (left.length || engine.status.state !== 'synced') throw new Error(`not fully acknowledged: ${left.length} rows, ${engine.status.state} ${engine.status.message}`);
     const stored = await database.query<{ n: number }>('select count(*)::int as n from readings where run_id = $1', [run.id]);
     if (stored[0].n !== N) throw new Error(`server holds ${stored[0].n} readings, expected ${N}`);
-    return ms;
+    return { ms, cpuMs, requestsMs, requests };
   }
 
-  async function rawRound(how: 'values' | 'unnest'): Promise<number> {
+  async function rawRound(how: Raw): Promise<{ ms: number; cpuMs: number }> {
     const runId = v7();
     await database.db.insert(runs).values({ id: runId, labId: lab.id, analystId: user.id, sampleName: 'raw bench run (demo)' });
     const now = new Date();
+    // Change-log places as the push takes them (the next N of the sequence), reserved outside the timing: the same
+    // index work, at the same end of readings (lab_id, seq).
+    const [{ last }] = await database.query<{ last: string }>(`select setval('sync_changes_seq_seq', nextval('sync_changes_seq_seq') + ${N - 1}) as last`);
+    const firstSeq = Number(last) - N + 1;
     const rows = Array.from({ length: N }, (_, i) => ({
       id: v7(),
       runId,
@@ -65,39 +96,71 @@ async function main() {
       deviceRecordedAt: now,
       receivedAt: now,
       payloadHash: 'x'.repeat(64),
+      seq: firstSeq + i,
     }));
     const t0 = performance.now();
-    await database.db.transaction(async (tx) => {
-      if (how === 'unnest') await insertReadingsIgnoringExisting(tx, rows);
-      // Chunked only because a statement takes at most 65,535 parameters.
-      else for (let i = 0; i < rows.length; i += 3000) await tx.insert(readings).values(rows.slice(i, i + 3000));
-    });
-    return performance.now() - t0;
+    const c0 = process.cpuUsage();
+    if (how === 'values') {
+      // Chunked only because a statement takes at most 65,535 parameters (13 per row).
+      await database.db.transaction(async (tx) => {
+        for (let i = 0; i < rows.length; i += 5000) await tx.insert(readings).values(rows.slice(i, i + 5000));
+      });
+    } else if (how === 'unnest') {
+      const col = (f: (r: (typeof rows)[number]) => string | number | null) => `{${rows.map((r) => { const v = f(r); return v === null ? 'NULL' : typeof v === 'number' ? String(v) : `"${v}"`; }).join(',')}}`;
+      const iso = now.toISOString();
+      await pg.transaction(async (tx) => {
+        await tx.query(
+          `insert into readings (id, run_id, lab_id, kind, time_s, ph, mv, device_recorded_at, received_at, payload_hash, seq)
+           select * from unnest($1::uuid[], $2::uuid[], $3::uuid[], $4::text[], $5::float8[], $6::float8[], $7::float8[], $8::timestamptz[], $9::timestamptz[], $10::text[], $11::int8[])`,
+          [col((r) => r.id), col((r) => r.runId), col((r) => r.labId), col((r) => r.kind), col((r) => r.timeS), col((r) => r.pH), col((r) => r.mV), col(() => iso), col(() => iso), col((r) => r.payloadHash), col((r) => r.seq)],
+        );
+      });
+    } else {
+      const iso = now.toISOString();
+      const csv = rows.map((r) => `${r.id},${r.runId},${r.labId},${r.kind},${r.timeS},${r.pH},,${iso},${iso},${r.payloadHash},${r.seq}\n`).join('');
+      await pg.transaction(async (tx) => {
+        await tx.query(`copy readings (id, run_id, lab_id, kind, time_s, ph, mv, device_recorded_at, received_at, payload_hash, seq) from '/dev/blob' with (format csv)`, [], {
+          blob: new Blob([csv]),
+        });
+      });
+    }
+    const ms = performance.now() - t0;
+    const cpuMs = cpuSince(c0);
+    const stored = await database.query<{ n: number }>('select count(*)::int as n from readings where run_id = $1', [runId]);
+    if (stored[0].n !== N) throw new Error(`raw ${how} stored ${stored[0].n} readings, expected ${N}`);
+    return { ms, cpuMs };
   }
 
   const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
   await syncRound();
-  await rawRound('values');
-  await rawRound('unnest');
-  const syncMs: number[] = [];
-  const rawMs: number[] = [];
-  const unnestMs: number[] = [];
+  for (const how of RAW) await rawRound(how);
+  const sync: { ms: number; cpuMs: number; requestsMs: number; requests: number }[] = [];
+  const raw: Record<Raw, { ms: number; cpuMs: number }[]> = { values: [], unnest: [], copy: [] };
   for (let i = 0; i < 3; i++) {
-    syncMs.push(await syncRound());
-    rawMs.push(await rawRound('values'));
-    unnestMs.push(await rawRound('unnest'));
-    log(`round ${i + 1}: sync ${syncMs[i].toFixed(0)} ms, raw VALUES insert ${rawMs[i].toFixed(0)} ms, raw unnest insert ${unnestMs[i].toFixed(0)} ms`);
+    sync.push(await syncRound());
+    for (const how of RAW) raw[how].push(await rawRound(how));
+    // CPU time of this process (server, device and PGlite all run in it): less moved by other load than wall time.
+    log(
+      `round ${i + 1}: sync ${sync[i].ms.toFixed(0)} ms (CPU ${sync[i].cpuMs.toFixed(0)} ms; ${sync[i].requests} push requests, ${sync[i].requestsMs.toFixed(0)} ms inside them), ` +
+        RAW.map((how) => `raw ${how} ${raw[how][i].ms.toFixed(0)} ms (CPU ${raw[how][i].cpuMs.toFixed(0)})`).join(', '),
+    );
   }
-  const s = median(syncMs);
-  const r = median(rawMs);
-  const u = median(unnestMs);
-  const ratio = s / r;
-  console.log(JSON.stringify({ figure: `sync: ${N} readings pushed over loopback HTTP to fully acknowledged (median of 3)`, value: Math.round(s), unit: 'ms', goal: '<= 3000', meetsGoal: s <= 3000 }));
-  console.log(JSON.stringify({ figure: `sync: raw multi-row VALUES insert of the same ${N} rows (median of 3)`, value: Math.round(r), unit: 'ms', goal: 'reference', meetsGoal: true }));
-  console.log(JSON.stringify({ figure: 'sync: push time / raw VALUES insert time', value: Math.round(ratio * 100) / 100, unit: 'x', ratio, goal: '<= 2', meetsGoal: ratio <= 2 }));
-  // The push inserts readings with unnest(); against the same technique the overhead of the protocol shows plainly.
-  console.log(JSON.stringify({ figure: `sync: raw unnest insert of the same ${N} rows (median of 3)`, value: Math.round(u), unit: 'ms', goal: 'reference', meetsGoal: true }));
-  console.log(JSON.stringify({ figure: 'sync: push time / raw unnest insert time', value: Math.round((s / u) * 100) / 100, unit: 'x', ratio: s / u, goal: 'reported', meetsGoal: true }));
+  const s = median(sync.map((x) => x.ms));
+  const r = { values: median(raw.values.map((x) => x.ms)), unnest: median(raw.unnest.map((x) => x.ms)), copy: median(raw.copy.map((x) => x.ms)) };
+  const fastest = r.values <= r.unnest ? 'VALUES' : 'unnest';
+  const best = Math.min(r.values, r.unnest);
+  const ratio = s / best;
+  const fig = (row: Record<string, unknown>) => console.log(JSON.stringify(row));
+  fig({ figure: `sync: ${N} readings pushed over loopback HTTP to fully acknowledged (median of 3)`, value: Math.round(s), unit: 'ms', goal: '<= 3000', meetsGoal: s <= 3000 });
+  fig({ figure: 'sync: of which inside push requests (server, loopback, answer read), median', value: Math.round(median(sync.map((x) => x.requestsMs))), unit: 'ms', note: 'reported' });
+  fig({ figure: `sync: push time / fastest raw multi-row INSERT (${fastest})`, value: Math.round(ratio * 100) / 100, unit: 'x', ratio, goal: '<= 2', meetsGoal: ratio <= 2 });
+  // References: measured beside the push, no goal of their own.
+  fig({ figure: `sync: raw multi-row INSERT … VALUES of the same ${N} rows (median of 3)`, value: Math.round(r.values), unit: 'ms', note: 'reference' });
+  fig({ figure: `sync: raw INSERT … SELECT FROM unnest() of the same ${N} rows (median of 3)`, value: Math.round(r.unnest), unit: 'ms', note: 'reference' });
+  fig({ figure: `sync: raw COPY FROM a CSV blob of the same ${N} rows (median of 3)`, value: Math.round(r.copy), unit: 'ms', note: 'reference' });
+  fig({ figure: 'sync: push time / raw VALUES insert', value: Math.round((s / r.values) * 100) / 100, unit: 'x', ratio: s / r.values, note: 'reported' });
+  fig({ figure: 'sync: push time / raw unnest insert', value: Math.round((s / r.unnest) * 100) / 100, unit: 'x', ratio: s / r.unnest, note: 'reported' });
+  fig({ figure: 'sync: push time / raw COPY', value: Math.round((s / r.copy) * 100) / 100, unit: 'x', ratio: s / r.copy, note: 'reported' });
 
   server.close();
   server.closeAllConnections?.();

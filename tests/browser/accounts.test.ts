@@ -60,6 +60,22 @@ const views: [string, Viewport][] = [
   ['desktop', DESKTOP],
 ];
 
+/**
+ * A form's full-width button spans the form: on a desk screen the form keeps a readable width (at most 560 px with its
+ * padding) and sits in the middle of the content area; on a phone it fills the width.
+ */
+async function expectFormWidth(page: Page, buttonTestId: string, label: string) {
+  const button = (await page.getByTestId(buttonTestId).boundingBox())!;
+  if (label === 'phone') {
+    expect(button.width).toBeGreaterThan(PHONE.width * 0.75);
+    return;
+  }
+  expect(button.width).toBeLessThanOrEqual(560);
+  const main = (await page.locator('[data-testid^="screen-"]').first().boundingBox())!;
+  const gap = Math.abs(button.x + button.width / 2 - (main.x + main.width / 2));
+  expect(gap, 'centred in the content area').toBeLessThan(4);
+}
+
 describe('accounts in the browser', () => {
   it('sign-in screen at phone and desktop width', async () => {
     for (const [label, viewport] of views) {
@@ -67,6 +83,7 @@ describe('accounts in the browser', () => {
       await app.page.getByTestId('screen-sign-in').waitFor();
       await app.page.getByTestId('status-sign-in').waitFor(); // the shell says nobody is signed in
       await shot(app.page, `accounts-sign-in-${label}`);
+      await expectFormWidth(app.page, 'sign-in-submit', label);
       await app.close();
     }
   });
@@ -168,6 +185,7 @@ describe('accounts in the browser', () => {
       const r = await openApp(new URL(link).pathname, { viewport });
       await r.page.getByTestId('screen-reset').waitFor();
       await shot(r.page, `accounts-reset-${label}`);
+      await expectFormWidth(r.page, 'reset-submit', label);
       if (label === 'phone') {
         // Too short: a clear message before anything is sent.
         await r.page.getByTestId('reset-password').fill('short');

@@ -26,13 +26,20 @@ describe('Calibrate, as a manager', () => {
     const app = await openApp('/', { viewport: PHONE });
     const { page } = app;
     await signInAsManager(page);
+    // The demo seed already has a gravimetric rate in force: remember it, so the save below must change it.
+    const rateBefore = (await page.getByTestId('setting-rate').first().textContent()) ?? '';
 
     await page.getByTestId('start-gravimetric').first().click();
     await page.getByTestId('screen-gravimetric').waitFor();
+    // The page's clock is held still between Start and Stop and moved by exactly 2 s, so the three deliveries are
+    // timed alike however busy the machine is (a loaded CI machine once made real 2 s waits differ by 5 %).
+    await page.clock.install();
     for (const mass of ['0.0401', '0.0402', '0.0400']) {
+      await page.clock.pauseAt((await page.evaluate(() => Date.now())) + 1000); // the page's (fake) time, not ours
       await page.getByTestId('grav-timer').click(); // start
-      await page.waitForTimeout(2000);
+      await page.clock.runFor(2000);
       await page.getByTestId('grav-timer').click(); // stop
+      await page.clock.resume();
       await page.getByTestId('grav-mass').fill(mass);
       await page.getByTestId('grav-temp').fill('21,5'); // decimal comma accepted
       await page.getByTestId('grav-add').click();
@@ -42,10 +49,14 @@ describe('Calibrate, as a manager', () => {
     const value = Number(rate!.split(' ')[0]);
     expect(value).toBeGreaterThan(0.015);
     expect(value).toBeLessThan(0.021);
+    // Three equal timings of near-equal masses: within the lab's repeatability limit, so the new rate goes in force.
+    expect(await page.getByTestId('grav-acceptance').textContent()).toBe('Repeatability within the lab limit.');
     await shot(page, 'calibrate-gravimetric-phone');
     await page.getByTestId('grav-save').click();
     await page.waitForURL('**/calibrate');
-    await expect.poll(async () => (await page.getByTestId('setting-rate').first().textContent()) ?? '').toMatch(/mL\/s · Gravimetric/);
+    const inForce = async () => (await page.getByTestId('setting-rate').first().textContent()) ?? '';
+    await expect.poll(inForce).not.toBe(rateBefore);
+    expect(await inForce()).toMatch(new RegExp(`^${rate!.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')} · Gravimetric`));
 
     await page.getByTestId('start-standardise').first().click();
     await page.getByTestId('screen-standardise').waitFor();

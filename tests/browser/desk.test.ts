@@ -3,6 +3,7 @@ import { readFileSync } from 'node:fs';
 import type { Page } from 'playwright-core';
 import { afterAll, describe, expect, it } from 'vitest';
 import { DEMO_USERS } from '../../server/demo/seed';
+import { shotScrolled } from './bench-helpers';
 import { closeBrowser, DESKTOP, openApp, PHONE, shot } from './harness';
 
 afterAll(closeBrowser);
@@ -17,6 +18,61 @@ async function signIn(page: Page, role: 'viewer' | 'manager' | 'analyst') {
   return u;
 }
 
+/** The report's pH plot read with the crosshair and zoomed, by mouse or by keyboard; the values read are real readings. */
+async function exploreCurve(page: Page, by: 'mouse' | 'keys') {
+  const slider = page.getByRole('slider', { name: /pH against volume/ });
+  await slider.scrollIntoViewIfNeeded();
+  const readout = page.getByTestId('plot-curve-chart-readout');
+  const read = async () => {
+    const m = /^pH (-?[\d.]+) at ([\d.]+) mL$/.exec((await readout.innerText()).trim());
+    expect(m, 'a read-out like "pH 4.756 at 12.4 mL"').not.toBeNull();
+    return { pH: m![1], mL: Number(m![2]) };
+  };
+  const table = await page.getByTestId('readings-table').innerText();
+  if (by === 'mouse') {
+    const box = (await slider.boundingBox())!;
+    await page.mouse.move(box.x + box.width * 0.5, box.y + box.height * 0.5);
+    const mid = await read();
+    expect(table).toContain(mid.pH);
+    await page.mouse.move(box.x + box.width * 0.8, box.y + box.height * 0.5);
+    expect((await read()).mL).toBeGreaterThan(mid.mL);
+    // Drag across the middle fifth: the view becomes that range.
+    await page.mouse.move(box.x + box.width * 0.4, box.y + box.height * 0.5);
+    await page.mouse.down();
+    await page.mouse.move(box.x + box.width * 0.5, box.y + box.height * 0.5, { steps: 4 });
+    await page.mouse.move(box.x + box.width * 0.6, box.y + box.height * 0.5, { steps: 4 });
+    await page.mouse.up();
+    await page.getByTestId('plot-curve-chart-range').waitFor();
+    const [lo, hi] = (await page.getByTestId('plot-curve-chart-range').innerText()).match(/[\d.]+/g)!.map(Number);
+    expect(lo).toBeLessThan(mid.mL + 1e-9);
+    expect(hi).toBeGreaterThan(lo);
+    await page.mouse.move(box.x + box.width * 0.5, box.y + box.height * 0.5);
+    const zoomedRead = await read();
+    expect(zoomedRead.mL).toBeGreaterThanOrEqual(lo);
+    expect(zoomedRead.mL).toBeLessThanOrEqual(hi);
+  } else {
+    await slider.focus();
+    await page.keyboard.press('Home');
+    const first = await read();
+    await page.keyboard.press('ArrowRight');
+    await page.keyboard.press('ArrowRight');
+    const third = await read();
+    expect(third.mL).toBeGreaterThan(first.mL);
+    expect(table).toContain(third.pH);
+    expect(await slider.getAttribute('aria-valuetext')).toBe(`pH ${third.pH} at ${third.mL} mL`);
+    await page.keyboard.press('+');
+    await page.getByTestId('plot-curve-chart-range').waitFor();
+    await page.keyboard.press('End');
+    const last = await read();
+    expect(last.mL).toBeGreaterThan(third.mL);
+    // The zoomed view followed the crosshair to the last point.
+    const [, hi] = (await page.getByTestId('plot-curve-chart-range').innerText()).match(/[\d.]+/g)!.map(Number);
+    expect(hi).toBeGreaterThanOrEqual(last.mL);
+  }
+  // The plot's card at the top of the view: title, plot, read-out and zoom buttons in one screenshot.
+  await page.getByTestId('plot-curve').evaluate((el) => el.scrollIntoView({ block: 'start' }));
+}
+
 describe('the team desk', () => {
   for (const [label, viewport] of [['desktop', DESKTOP], ['phone', PHONE]] as const) {
     it(`a viewer filters the table, opens a run, compares two, and cannot approve (${label})`, async () => {
@@ -27,25 +83,30 @@ describe('the team desk', () => {
       await page.getByTestId(label === 'desktop' ? 'runs-table' : 'runs-cards').waitFor();
       const rows = page.locator('[data-testid^="run-row-"]');
       await expect.poll(() => rows.count(), { timeout: 30_000 }).toBeGreaterThanOrEqual(6);
-      await shot(page, `desk-logbook-${label}`);
+      await shotScrolled(page, `desk-logbook-${label}`, shot, 3);
       await page.getByTestId('filter-status-submitted').click();
       await expect.poll(() => rows.count(), { timeout: 30_000 }).toBe(2);
       await shot(page, `desk-logbook-filtered-${label}`);
-      await page.getByTestId('filter-status-all').click();
-      await expect.poll(() => rows.count(), { timeout: 30_000 }).toBeGreaterThanOrEqual(6);
+      // The two submitted runs (analysed, awaiting review): compared, and one opened where a manager could approve.
       const ids = await rows.evaluateAll((els) => els.map((e) => e.getAttribute('data-testid')!.slice('run-row-'.length)));
       await page.getByTestId(`select-${ids[0]}`).click();
       await page.getByTestId(`select-${ids[1]}`).click();
       await page.getByTestId('compare-selected').click();
       await page.getByTestId('screen-compare').waitFor();
-      await page.getByTestId('compare-results').getByText('Ve ').first().waitFor();
+      const ve = page.getByTestId('compare-results').getByText(/^Ve \d+\.\d+ ± \d/);
+      await expect.poll(() => ve.count(), { timeout: 30_000 }).toBe(2);
       await page.getByTestId('align-fraction').click();
       await shot(page, `desk-compare-${label}`);
       await page.goto(`/logbook/${ids[0]}`);
       await page.getByTestId('results').waitFor({ timeout: 30_000 });
       await page.getByTestId('readings-table').waitFor();
+      await page.getByTestId('run-status').getByText('submitted').waitFor();
+      // A manager sees the review controls on this run (the last test approves one); a viewer sees none.
       expect(await page.getByTestId('review-approve').count()).toBe(0);
-      await shot(page, `desk-report-${label}`);
+      expect(await page.getByTestId('review-password').count()).toBe(0);
+      await shotScrolled(page, `desk-report-${label}`, shot, 8);
+      await exploreCurve(page, label === 'desktop' ? 'mouse' : 'keys');
+      await shot(page, `desk-report-crosshair-${label}`);
       await app.close();
     });
   }

@@ -49,6 +49,8 @@ export interface OpenOptions {
   profileDir?: string;
   /** Console error texts that are expected in this test (matched as substrings), e.g. while offline. */
   allowConsole?: string[];
+  /** No service worker: every request then reaches page.route (the worker would answer from its cache). */
+  blockServiceWorkers?: boolean;
 }
 
 export async function openApp(pathname = '/', opts: OpenOptions = {}): Promise<AppSession> {
@@ -56,6 +58,7 @@ export async function openApp(pathname = '/', opts: OpenOptions = {}): Promise<A
   const errors: string[] = [];
   let persistent: BrowserContext | undefined;
   let context: BrowserContext;
+  const serviceWorkers = opts.blockServiceWorkers ? 'block' : 'allow';
   if (opts.profileDir) {
     persistent = await chromium.launchPersistentContext(opts.profileDir, {
       executablePath: CHROMIUM,
@@ -63,10 +66,11 @@ export async function openApp(pathname = '/', opts: OpenOptions = {}): Promise<A
       headless: true,
       viewport,
       baseURL: baseURL(),
+      serviceWorkers,
     });
     context = persistent;
   } else {
-    context = await (await browser()).newContext({ viewport, baseURL: baseURL() });
+    context = await (await browser()).newContext({ viewport, baseURL: baseURL(), serviceWorkers });
   }
   const watch = (p: Page) => watchErrors(p, errors);
   const page = context.pages()[0] ?? (await context.newPage());

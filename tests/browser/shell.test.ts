@@ -1,3 +1,4 @@
+import type { Page, Route } from 'playwright-core';
 import { afterAll, describe, expect, it } from 'vitest';
 import { closeBrowser, DESKTOP, openApp, PHONE, shot } from './harness';
 
@@ -41,6 +42,55 @@ describe('app shell', () => {
         return ['Inter_400Regular', 'Inter_600SemiBold', 'Inter_700Bold'].map((f) => document.fonts.check(`16px ${f}`));
       });
       expect(fontsOk).toEqual([true, true, true]);
+      await app.close();
+    });
+  }
+
+  // What a finger may aim at on the bench while the page is still loading its later parts.
+  const TARGETS = ['nav-bench', 'nav-logbook', 'nav-calibrate', 'nav-lab', 'new-run', 'sign-out', 'sign-out-loading'];
+  const targetBoxes = (page: Page) =>
+    page.evaluate((ids) => {
+      const out: Record<string, number[]> = {};
+      for (const id of ids) {
+        const r = document.querySelector(`[data-testid="${id}"]`)?.getBoundingClientRect();
+        // The placeholder and the real Sign out button are one place.
+        if (r) out[id.replace('-loading', '')] = [r.x, r.y, r.width, r.height].map(Math.round);
+      }
+      return out;
+    }, TARGETS);
+
+  for (const [label, viewport] of [
+    ['phone', PHONE],
+    ['desktop', DESKTOP],
+  ] as const) {
+    it(`holds every tap target still at ${label} width while the status area's later parts arrive`, async () => {
+      // No service worker, so the test can hold back the chunk of shared code that the sync engine and the sign-out
+      // button wait for (the first screen draws without it; see server/web-chunks.mjs).
+      const app = await openApp('/sign-in', { viewport, blockServiceWorkers: true });
+      const { page } = app;
+      await page.getByTestId('sign-in-email').fill('analyst@demo.halfmark.test');
+      await page.getByTestId('sign-in-password').fill('demo-analyst-2026');
+      await page.getByTestId('sign-in-submit').click();
+      await page.waitForURL('**/bench');
+      await page.getByTestId('sign-out').waitFor();
+
+      const held: Route[] = [];
+      await page.route('**/_expo/static/js/web/__later-*.js', (route) => void held.push(route));
+      await page.reload();
+      await page.getByTestId('new-run').waitFor();
+      await page.getByTestId('sign-out-loading').waitFor();
+      await expect.poll(() => held.length).toBe(1);
+      expect(await page.getByTestId('sync-state').innerText()).toBe('Sync starting');
+      expect(await page.getByTestId('sign-out-loading').isDisabled()).toBe(true);
+      const loading = await targetBoxes(page);
+      await shot(page, `shell-lazy-loading-${label}`);
+
+      for (const r of held) await r.continue();
+      await page.getByTestId('sign-out').waitFor();
+      await expect.poll(() => page.getByTestId('sync-state').innerText()).not.toBe('Sync starting');
+      expect(await targetBoxes(page)).toEqual(loading);
+      expect(Object.keys(loading)).toEqual(['nav-bench', 'nav-logbook', 'nav-calibrate', 'nav-lab', 'new-run', 'sign-out']);
+      await shot(page, `shell-lazy-loaded-${label}`);
       await app.close();
     });
   }

@@ -1,11 +1,12 @@
 import fc from 'fast-check';
 import { z } from 'zod';
 
-type JsonSchema = {
+export type JsonSchema = {
   type?: string | string[];
   properties?: Record<string, JsonSchema>;
   required?: string[];
   items?: JsonSchema;
+  prefixItems?: JsonSchema[];
   enum?: unknown[];
   const?: unknown;
   anyOf?: JsonSchema[];
@@ -19,7 +20,7 @@ type JsonSchema = {
 };
 
 /** Values no schema expects: wrong types, extremes, huge strings, deep nesting. */
-const wild: fc.Arbitrary<unknown> = fc.oneof(
+export const wild: fc.Arbitrary<unknown> = fc.oneof(
   fc.constant(null),
   fc.boolean(),
   fc.integer(),
@@ -34,7 +35,7 @@ const wild: fc.Arbitrary<unknown> = fc.oneof(
   fc.date({ noInvalidDate: true }).map((d) => d.toISOString()),
 );
 
-function fromSchema(s: JsonSchema | undefined, depth: number): fc.Arbitrary<unknown> {
+export function fromSchema(s: JsonSchema | undefined, depth = 0): fc.Arbitrary<unknown> {
   if (!s || depth > 6) return wild;
   const branches: fc.Arbitrary<unknown>[] = [];
   if (s.const !== undefined) branches.push(fc.constant(s.const));
@@ -74,11 +75,15 @@ function fromSchema(s: JsonSchema | undefined, depth: number): fc.Arbitrary<unkn
 /** Bodies near the shape the schema wants (so they reach deep into handlers), mixed with wild ones. */
 export function bodyArbitrary(schema: z.ZodType | undefined): fc.Arbitrary<unknown> {
   if (!schema) return fc.oneof(wild, fc.object());
-  let json: JsonSchema | undefined;
+  return fromSchema(jsonSchemaOf(schema), 0);
+}
+
+/** The JSON Schema of what a zod schema accepts as input; undefined when zod cannot represent it. */
+export function jsonSchemaOf(schema: z.ZodType | undefined): JsonSchema | undefined {
+  if (!schema) return undefined;
   try {
-    json = z.toJSONSchema(schema, { unrepresentable: 'any', io: 'input' }) as JsonSchema;
+    return z.toJSONSchema(schema, { unrepresentable: 'any', io: 'input' }) as JsonSchema;
   } catch {
-    json = undefined;
+    return undefined;
   }
-  return fromSchema(json, 0);
 }

@@ -18,11 +18,11 @@ export function AcceptInvitationScreen({ token }: { token: string }) {
   const [formError, setFormError] = useState<string | null>(null);
 
   if (preview.isPending) {
-    return <Screen title="Invitation" subtitle="Looking up the invitation…" testID="screen-invite" />;
+    return <Screen title="Invitation" subtitle="Looking up the invitation…" width="form" testID="screen-invite" />;
   }
   if (preview.isError || !preview.data) {
     return (
-      <Screen title="Invitation" testID="screen-invite">
+      <Screen title="Invitation" width="form" testID="screen-invite">
         <FormMessage message={serverErrors(preview.error).form} />
       </Screen>
     );
@@ -50,7 +50,7 @@ export function AcceptInvitationScreen({ token }: { token: string }) {
   };
 
   return (
-    <Screen title={`Join ${inv.labName}`} subtitle={`${inv.invitedBy ?? 'A manager'} invited ${inv.email} as ${inv.role}.`} testID="screen-invite">
+    <Screen title={`Join ${inv.labName}`} subtitle={`${inv.invitedBy ?? 'A manager'} invited ${inv.email} as ${inv.role}.`} width="form" testID="screen-invite">
       <Card>
         {inv.existingAccount ? (
           <>

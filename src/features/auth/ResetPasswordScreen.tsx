@@ -36,7 +36,7 @@ export function ResetPasswordScreen({ token }: { token: string }) {
   };
 
   return (
-    <Screen title="Choose a new password" subtitle="Other devices signed in to your account will be signed out." testID="screen-reset">
+    <Screen title="Choose a new password" subtitle="Other devices signed in to your account will be signed out." width="form" testID="screen-reset">
       <Card>
         <NewPasswordField value={password} onChangeText={setPassword} error={fields.password} testID="reset-password" />
         <FormMessage message={formError} />

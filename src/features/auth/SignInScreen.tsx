@@ -44,7 +44,7 @@ export function SignInScreen() {
     <Screen
       title={mode === 'signIn' ? 'Sign in' : 'Reset your password'}
       subtitle={mode === 'signIn' ? 'With the e-mail address your lab invited.' : 'We e-mail you a link to choose a new password.'}
-      testID="screen-sign-in"
+      width="form" testID="screen-sign-in"
     >
       <Card>
         <Field

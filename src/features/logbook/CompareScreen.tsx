@@ -7,7 +7,7 @@ import { colors, space } from '../../theme/tokens';
 import { Card, Screen, Text } from '../../ui';
 import { api } from '../../api/client';
 import { LineChart, type ChartSeries } from '../charts/LineChart';
-import { deskKeys } from './api';
+import { keys } from '../../api/keys';
 import { Chip } from './LogbookScreen';
 import { plotsOf } from './RunReportScreen';
 import { num, withU } from './format';
@@ -17,7 +17,7 @@ const PALETTE = [colors.curve, colors.accent, colors.base, colors.acid, colors.o
 /** Overlays two or more runs, on volume or on fraction titrated (V / first Ve), with their results side by side. */
 export function CompareScreen({ ids }: { ids: string[] }) {
   const [align, setAlign] = useState<'volume' | 'fraction'>('volume');
-  const qs = useQueries({ queries: ids.map((id) => ({ queryKey: deskKeys.run(id), queryFn: () => api<RunDetail>(`/runs/${id}`) })) });
+  const qs = useQueries({ queries: ids.map((id) => ({ queryKey: keys.run(id), queryFn: () => api<RunDetail>(`/runs/${id}`) })) });
   const runs = qs.map((q) => q.data).filter(Boolean) as RunDetail[];
   const series: ChartSeries[] = runs.map((d, i) => {
     const ve = (d.analysis as AnalysisResult | null)?.equivalencePoints[0]?.volumeMl;

@@ -9,23 +9,30 @@ import { day, num } from './format';
 
 const statusTone = (s: string) => (s === 'approved' ? 'ok' : s === 'submitted' ? 'accent' : s === 'returned' ? 'warn' : 'neutral') as 'ok';
 
-const COLUMNS: { key: RunSort | null; label: string; flex: number }[] = [
+// minWidth keeps a date ("2026-03-14", tabular figures) on one line however narrow the desk window; a browser
+// would otherwise break it at a hyphen.
+const COLUMNS: { key: RunSort | null; label: string; flex: number; minWidth?: number }[] = [
   { key: 'sample', label: 'Sample', flex: 3 },
   { key: 'analyst', label: 'Analyst', flex: 2 },
-  { key: 'date', label: 'Date', flex: 1.2 },
+  { key: 'date', label: 'Date', flex: 1.2, minWidth: 120 },
   { key: 've', label: 'Ve (mL)', flex: 1 },
   { key: 'pka', label: 'pKa', flex: 0.8 },
   { key: null, label: 'Result', flex: 1.4 },
   { key: 'status', label: 'Status', flex: 1.2 },
-  { key: null, label: 'Sync', flex: 1.2 },
+  { key: null, label: 'Sync', flex: 1.4, minWidth: 120 },
 ];
+const col = (label: string) => {
+  const c = COLUMNS.find((k) => k.label === label)!;
+  return { flex: c.flex, minWidth: c.minWidth };
+};
 
 function resultText(r: RunRow) {
   if (r.molarMassGPerMol != null) return `${num(r.molarMassGPerMol, 5)} g/mol`;
   if (r.concentrationM != null) return `${num(r.concentrationM, 4)} mol/L`;
   return '—';
 }
-const syncText = (r: RunRow) => (r.lastReceivedAt ? `${r.readingCount} rdg, ${day(r.lastReceivedAt)}` : `${r.readingCount} readings`);
+const countText = (r: RunRow) => `${r.readingCount} reading${r.readingCount === 1 ? '' : 's'}`;
+const lastText = (r: RunRow) => (r.lastReceivedAt ? `last ${day(r.lastReceivedAt)}` : null);
 
 export function LogbookScreen() {
   const lab = useActiveLab();
@@ -119,7 +126,7 @@ export function LogbookScreen() {
             <View style={[styles.tr, styles.th]}>
               <View style={{ width: 36 }} />
               {COLUMNS.map((c) => (
-                <Pressable key={c.label} style={{ flex: c.flex }} onPress={c.key ? () => sortBy(c.key!) : undefined} accessibilityRole={c.key ? 'button' : undefined} testID={c.key ? `sort-${c.key}` : undefined}>
+                <Pressable key={c.label} style={col(c.label)} onPress={c.key ? () => sortBy(c.key!) : undefined} accessibilityRole={c.key ? 'button' : undefined} testID={c.key ? `sort-${c.key}` : undefined}>
                   <Text variant="label">
                     {c.label}
                     {c.key && q.sort === c.key ? (q.dir === 'asc' ? ' ▲' : ' ▼') : ''}
@@ -132,18 +139,21 @@ export function LogbookScreen() {
                 <Pressable style={{ width: 36 }} onPress={() => toggle(r.id)} accessibilityRole="checkbox" accessibilityState={{ checked: selected.includes(r.id) }} testID={`select-${r.id}`}>
                   <Text>{selected.includes(r.id) ? '☑' : '☐'}</Text>
                 </Pressable>
-                <Pressable style={{ flex: 3 }} onPress={() => router.push(`/logbook/${r.id}`)} accessibilityRole="link">
+                <Pressable style={col('Sample')} onPress={() => router.push(`/logbook/${r.id}`)} accessibilityRole="link">
                   <Text tone="accent">{r.sampleName}</Text>
                 </Pressable>
-                <Text style={{ flex: 2 }}>{r.analystName}</Text>
-                <Text style={{ flex: 1.2 }} numeric>{day(r.createdAt)}</Text>
-                <Text style={{ flex: 1 }} numeric>{num(r.equivalenceVolumeMl, 4)}</Text>
-                <Text style={{ flex: 0.8 }} numeric>{num(r.pKa, 3)}</Text>
-                <Text style={{ flex: 1.4 }} numeric>{resultText(r)}</Text>
-                <View style={{ flex: 1.2 }}>
+                <Text style={col('Analyst')}>{r.analystName}</Text>
+                <Text style={col('Date')} numeric numberOfLines={1}>{day(r.createdAt)}</Text>
+                <Text style={col('Ve (mL)')} numeric>{num(r.equivalenceVolumeMl, 4)}</Text>
+                <Text style={col('pKa')} numeric>{num(r.pKa, 3)}</Text>
+                <Text style={col('Result')} numeric>{resultText(r)}</Text>
+                <View style={col('Status')}>
                   <Badge label={r.status} tone={statusTone(r.status)} />
                 </View>
-                <Text style={{ flex: 1.2 }} variant="caption" tone="muted">{syncText(r)}</Text>
+                <View style={col('Sync')}>
+                  <Text variant="caption" tone="muted" numberOfLines={1}>{countText(r)}</Text>
+                  {lastText(r) && <Text variant="caption" tone="muted" numeric numberOfLines={1}>{lastText(r)}</Text>}
+                </View>
               </View>
             ))}
           </View>
@@ -160,9 +170,12 @@ export function LogbookScreen() {
                   <Text variant="label" style={{ flex: 1 }}>{r.sampleName}</Text>
                   <Badge label={r.status} tone={statusTone(r.status)} />
                 </View>
-                <Text tone="muted" variant="caption">
-                  {r.analystName} · {day(r.createdAt)} · {syncText(r)}
-                </Text>
+                {/* Pieces that wrap between them, never inside a date. */}
+                <View style={styles.meta}>
+                  <Text tone="muted" variant="caption">{r.analystName}</Text>
+                  <Text tone="muted" variant="caption" numeric numberOfLines={1}>· {day(r.createdAt)}</Text>
+                  <Text tone="muted" variant="caption" numeric numberOfLines={1}>· {[countText(r), lastText(r)].filter(Boolean).join(', ')}</Text>
+                </View>
                 <Text numeric>
                   Ve {num(r.equivalenceVolumeMl, 4)} mL · pKa {num(r.pKa, 3)} · {resultText(r)}
                 </Text>
@@ -210,4 +223,5 @@ const styles = StyleSheet.create({
   card: { padding: space.md, borderWidth: 1, borderColor: colors.line, borderRadius: 10, backgroundColor: colors.surface, gap: space.xs },
   cardOn: { borderColor: colors.accent, borderWidth: 2 },
   selectBox: { minHeight: 40, justifyContent: 'center' },
+  meta: { flexDirection: 'row', flexWrap: 'wrap', columnGap: space.xs },
 });

@@ -4,54 +4,24 @@ import type { AnalysisResult } from '../../../shared/schemas/run-document';
 import { APPROVAL_MEANING, type RunDetail } from '../../../shared/schemas/desk';
 import { colors, space } from '../../theme/tokens';
 import { Badge, Button, Card, Field, Screen, Text } from '../../ui';
-import { LineChart, type ChartSeries } from '../charts/LineChart';
+import { LineChart, type ChartMarker, type ChartSeries } from '../charts/LineChart';
+import { LiveStatus } from './LiveStatus';
+import { useLiveFollow } from './useLiveFollow';
 import { useApprove, useComment, useReopen, useReturn, useRunDetail, useSubmit } from './api';
 import { downloadFile, uploadFile } from './download';
 import { methodLabel, num, when, withU } from './format';
 import { useQueryClient } from '@tanstack/react-query';
-import { deskKeys } from './api';
+import { keys } from '../../api/keys';
 
 type XY = { x: number; y: number };
 
-/** A plot with zoom on the x axis (the range typed or halved around the middle) and a read-out at a chosen x. */
-function ZoomPlot({ title, series, xLabel, yLabel, testID }: { title: string; series: ChartSeries[]; xLabel: string; yLabel: string; testID: string }) {
-  const all = series.flatMap((s) => s.points as XY[]);
-  const lo = Math.min(...all.map((p) => p.x));
-  const hi = Math.max(...all.map((p) => p.x));
-  const [domain, setDomain] = useState<[number, number] | null>(null);
-  const [at, setAt] = useState('');
-  const d = domain ?? [lo, hi];
-  const zoom = (f: number) => {
-    const mid = (d[0] + d[1]) / 2;
-    const half = ((d[1] - d[0]) / 2) * f;
-    setDomain([Math.max(lo, mid - half), Math.min(hi, mid + half)]);
-  };
-  const x = Number(at.replace(',', '.'));
-  const readout = at && Number.isFinite(x)
-    ? series.map((s) => {
-        const pts = s.points as XY[];
-        let best = pts[0];
-        for (const p of pts) if (Math.abs(p.x - x) < Math.abs(best.x - x)) best = p;
-        return best ? `${s.label}: ${num(best.y, 4)} at ${num(best.x, 4)}` : '';
-      })
-    : [];
-  if (!all.length) return null;
+/** One report plot: the shared chart with its crosshair read-out and zoom (LineChart `interactive`). */
+function PlotCard({ title, series, yLabel, yRightLabel, testID, markers }: { title: string; series: ChartSeries[]; yLabel: string; yRightLabel?: string; testID: string; markers?: ChartMarker[] }) {
+  const n = series.reduce((k, s) => k + s.points.length, 0);
+  if (!n) return null;
   return (
     <Card title={title} testID={testID}>
-      <LineChart series={series} xLabel={xLabel} yLabel={yLabel} xDomain={d} summary={`${title}, ${all.length} points`} height={260} />
-      <View style={styles.row}>
-        <Button label="Zoom in" kind="quiet" onPress={() => zoom(0.5)} testID={`${testID}-zoom-in`} />
-        <Button label="Zoom out" kind="quiet" onPress={() => zoom(2)} />
-        <Button label="Whole curve" kind="quiet" onPress={() => setDomain(null)} />
-        <View style={{ minWidth: 160 }}>
-          <Field label={`Read at ${xLabel}`} value={at} onChangeText={setAt} keyboardType="decimal-pad" testID={`${testID}-read`} />
-        </View>
-      </View>
-      {readout.map((r) => (
-        <Text key={r} numeric variant="caption" testID={`${testID}-readout`}>
-          {r}
-        </Text>
-      ))}
+      <LineChart interactive series={series} markers={markers} xLabel="Volume of titrant (mL)" xUnit="mL" yLabel={yLabel} yRightLabel={yRightLabel} summary={`${title}, ${n} points.`} height={280} testID={`${testID}-chart`} />
     </Card>
   );
 }
@@ -67,6 +37,24 @@ export function plotsOf(d: RunDetail) {
     granAfter: (a?.gran.after ?? []).map((p) => ({ x: p.volumeMl, y: p.value })),
     residuals: a?.fit ? a.fit.residuals.map((y, i) => ({ x: a.volumesMl[i] ?? i, y })) : [],
   };
+}
+
+/** The series of the report's plots, with the equivalence point(s) marked on the curve and its derivative. */
+function reportSeries(d: RunDetail) {
+  const p = plotsOf(d);
+  const a = d.analysis as AnalysisResult | null;
+  const markers: ChartMarker[] = (a?.equivalencePoints ?? []).map((e) => ({ x: e.volumeMl, label: `Ve ${num(e.volumeMl, 4)} mL` }));
+  return {
+    markers,
+    curve: [{ id: 'pH', label: 'pH', points: p.curve, color: colors.curve, dots: true }],
+    derivative: [{ id: 'd', label: 'dpH/dV', points: p.derivative, color: colors.derivative }],
+    gran: [
+      { id: 'gb', label: 'before Ve', points: p.granBefore, color: colors.acid, dots: true },
+      // Values after Ve are orders of magnitude larger: their own axis, as on the bench (TitrationCharts GranChart).
+      { id: 'ga', label: 'after Ve', points: p.granAfter, color: colors.base, dots: true, axis: 'right' },
+    ],
+    residuals: [{ id: 'res', label: 'residual', points: p.residuals, color: colors.fit, dots: true }],
+  } satisfies Record<string, ChartSeries[] | ChartMarker[]>;
 }
 
 export function RunReportScreen({ runId }: { runId: string }) {
@@ -86,7 +74,9 @@ export function RunReportScreen({ runId }: { runId: string }) {
 
 function Report({ d }: { d: RunDetail }) {
   const a = d.analysis as AnalysisResult | null;
-  const plots = useMemo(() => plotsOf(d), [d]);
+  const series = useMemo(() => reportSeries(d), [d]);
+  const live = useLiveFollow(d.run.id, d.run.status);
+  const following = live.mode !== 'stopped';
   const [busy, setBusy] = useState<string | null>(null);
   const [err, setErr] = useState<string | null>(null);
   const run = async (label: string, f: () => Promise<unknown>) => {
@@ -106,8 +96,14 @@ function Report({ d }: { d: RunDetail }) {
         <Badge label={d.run.status} tone={d.run.status === 'approved' ? 'ok' : d.run.status === 'submitted' ? 'accent' : 'neutral'} testID="run-status" />
         {d.revision.lockedAt && <Badge label={`locked ${when(d.revision.lockedAt)}`} tone="ok" />}
       </View>
+      <LiveStatus live={live} readings={d.readings} />
       <ReviewCard d={d} />
-      <Card title="Results">
+      <Card title={following ? 'Live estimates' : 'Results'} testID="results-card">
+        {following && (
+          <Text variant="caption" tone="muted">
+            The run is still being recorded: these numbers are worked out again as each reading arrives.
+          </Text>
+        )}
         {a ? (
           <View testID="results">
             {a.equivalencePoints.map((e) => (
@@ -130,10 +126,10 @@ function Report({ d }: { d: RunDetail }) {
           <Text tone="muted">{d.analysisError ?? 'No analysis yet.'}</Text>
         )}
       </Card>
-      <ZoomPlot title="pH against volume" testID="plot-curve" xLabel="mL" yLabel="pH" series={[{ id: 'pH', label: 'pH', points: plots.curve, color: colors.curve, dots: true }]} />
-      <ZoomPlot title="Derivative" testID="plot-derivative" xLabel="mL" yLabel="dpH/dV" series={[{ id: 'd', label: 'dpH/dV', points: plots.derivative, color: colors.derivative }]} />
-      <ZoomPlot title="Gran plot" testID="plot-gran" xLabel="mL" yLabel="Gran function" series={[{ id: 'gb', label: 'before Ve', points: plots.granBefore, color: colors.acid, dots: true }, { id: 'ga', label: 'after Ve', points: plots.granAfter, color: colors.base, dots: true }]} />
-      <ZoomPlot title="Fit residuals" testID="plot-residuals" xLabel="mL" yLabel="pH residual" series={[{ id: 'res', label: 'residual', points: plots.residuals, color: colors.fit, dots: true }]} />
+      <PlotCard title="pH against volume" testID="plot-curve" yLabel="pH" series={series.curve} markers={series.markers} />
+      <PlotCard title="Derivative" testID="plot-derivative" yLabel="dpH/dV (per mL)" series={series.derivative} markers={series.markers} />
+      <PlotCard title="Gran plot" testID="plot-gran" yLabel="V·10^−pH (before Ve)" yRightLabel="(V0+V)·10^(pH−pKw) (after Ve)" series={series.gran} />
+      <PlotCard title="Fit residuals" testID="plot-residuals" yLabel="pH residual (fit − measured)" series={series.residuals} />
       <Card title="Calibrations and titrant used">
         {d.calibrations.map((c) => (
           <Text key={c.kind}>
@@ -159,7 +155,7 @@ function Report({ d }: { d: RunDetail }) {
             ))}
           </View>
           {d.readings.map((r) => (
-            <View key={r.id} style={[styles.tr, r.supersededBy ? styles.superseded : null]}>
+            <View key={r.id} style={[styles.tr, r.supersededBy ? styles.superseded : null]} testID={`report-reading-${r.id}`}>
               <Text numeric style={styles.cell}>{num(r.timeS, 6)}</Text>
               <Text numeric style={styles.cell}>{num(r.volumeMl, 5)}</Text>
               <Text numeric style={[styles.cell, r.supersededBy ? styles.strike : null]}>{num(r.pH, 4)}</Text>
@@ -242,7 +238,7 @@ function Attachments({ d }: { d: RunDetail }) {
       setErr(null);
       try {
         await uploadFile(`/runs/${d.run.id}/attachments`, f);
-        await qc.invalidateQueries({ queryKey: deskKeys.run(d.run.id) });
+        await qc.invalidateQueries({ queryKey: keys.run(d.run.id) });
       } catch (e) {
         setErr((e as Error).message);
       }

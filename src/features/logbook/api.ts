@@ -1,15 +1,10 @@
-// Server data of the Logbook, through react-query with one key factory (keys under the lab, so lab-wide
-// invalidation reaches them too).
+// Server data of the Logbook, through react-query with the key factory of src/api/keys.ts.
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { ImportBody, ImportPreview, RunDetail, RunListQueryInput, RunListResponse } from '../../../shared/schemas/desk';
 import { api } from '../../api/client';
+import { keys } from '../../api/keys';
 import { activeMembership, useSession } from '../../state/session';
 
-export const deskKeys = {
-  runs: (labId: string, q: RunListQueryInput) => ['lab', labId, 'runs', q] as const,
-  allRuns: (labId: string) => ['lab', labId, 'runs'] as const,
-  run: (runId: string) => ['run', runId] as const,
-};
 
 export function toQueryString(q: Record<string, unknown>): string {
   const p = new URLSearchParams();
@@ -24,7 +19,7 @@ export function useActiveLab() {
 
 export function useRunsList(labId: string | undefined, q: RunListQueryInput) {
   return useQuery({
-    queryKey: deskKeys.runs(labId ?? '-', q),
+    queryKey: keys.runs(labId ?? '-', q),
     queryFn: () => api<RunListResponse>(`/labs/${labId}/runs${toQueryString(q)}`),
     enabled: Boolean(labId),
     placeholderData: keepPreviousData,
@@ -32,7 +27,7 @@ export function useRunsList(labId: string | undefined, q: RunListQueryInput) {
 }
 
 export function useRunDetail(runId: string | undefined) {
-  return useQuery({ queryKey: deskKeys.run(runId ?? '-'), queryFn: () => api<RunDetail>(`/runs/${runId}`), enabled: Boolean(runId) });
+  return useQuery({ queryKey: keys.run(runId ?? '-'), queryFn: () => api<RunDetail>(`/runs/${runId}`), enabled: Boolean(runId) });
 }
 
 function useRunMutation<B>(runId: string, path: string) {
@@ -40,7 +35,7 @@ function useRunMutation<B>(runId: string, path: string) {
   return useMutation({
     mutationFn: (body: B) => api<unknown>(`/runs/${runId}/${path}`, { method: 'POST', body }),
     onSuccess: () => {
-      void qc.invalidateQueries({ queryKey: deskKeys.run(runId) });
+      void qc.invalidateQueries({ queryKey: keys.run(runId) });
       void qc.invalidateQueries({ queryKey: ['lab'] });
     },
   });
@@ -63,6 +58,6 @@ export function useImport(labId: string | undefined) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: (body: ImportBody) => api<{ runId: string; readings: number }>(`/labs/${labId}/imports`, { method: 'POST', body }),
-    onSuccess: () => void qc.invalidateQueries({ queryKey: deskKeys.allRuns(labId ?? '-') }),
+    onSuccess: () => void qc.invalidateQueries({ queryKey: keys.allRuns(labId ?? '-') }),
   });
 }

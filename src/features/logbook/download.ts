@@ -1,10 +1,9 @@
-import { useSession } from '../../state/session';
+import { authorizedFetch, parseError } from '../../api/client';
 
-/** Fetches an API file with the access token and hands it to the browser as a download. */
+/** Fetches an API file with the access token (refreshed when needed) and hands it to the browser as a download. */
 export async function downloadFile(path: string, fallbackName: string): Promise<void> {
-  const token = useSession.getState().accessToken;
-  const res = await fetch(`/api${path}`, { headers: token ? { authorization: `Bearer ${token}` } : {}, credentials: 'same-origin' });
-  if (!res.ok) throw new Error(`The server answered ${res.status}.`);
+  const res = await authorizedFetch(path);
+  if (!res.ok) throw await parseError(res);
   const name = /filename="([^"]+)"/.exec(res.headers.get('content-disposition') ?? '')?.[1] ?? fallbackName;
   const blob = await res.blob();
   if (typeof document === 'undefined') throw new Error('Downloads work in the browser.');
@@ -20,11 +19,9 @@ export async function downloadFile(path: string, fallbackName: string): Promise<
 
 /** Uploads one file as multipart (field "file"). */
 export async function uploadFile(path: string, file: Blob & { name?: string }): Promise<unknown> {
-  const token = useSession.getState().accessToken;
   const form = new FormData();
   form.append('file', file, file.name ?? 'file');
-  const res = await fetch(`/api${path}`, { method: 'POST', body: form, headers: token ? { authorization: `Bearer ${token}` } : {}, credentials: 'same-origin' });
-  const body = await res.json().catch(() => ({}));
-  if (!res.ok) throw new Error((body as { error?: { message?: string } }).error?.message ?? `The server answered ${res.status}.`);
-  return body;
+  const res = await authorizedFetch(path, { method: 'POST', body: form });
+  if (!res.ok) throw await parseError(res);
+  return res.json().catch(() => ({}));
 }

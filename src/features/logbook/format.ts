@@ -15,6 +15,14 @@ export function withU(x: number | null | undefined, u: number | null | undefined
 export const day = (iso: string) => iso.slice(0, 10);
 export const when = (iso: string) => iso.slice(0, 16).replace('T', ' ');
 
+/** A duration as "4 s", "2 min", "1 h": coarser as it grows (it only gives a sense of freshness). */
+export function ago(ms: number): string {
+  const s = Math.max(0, Math.round(ms / 1000));
+  if (s < 90) return `${s} s`;
+  if (s < 90 * 60) return `${Math.round(s / 60)} min`;
+  return `${Math.round(s / 3600)} h`;
+}
+
 /** Readable names of the engine's methods (shared/schemas/run-document.ts methodName) for reports. */
 const METHOD_LABELS: Record<string, string> = {
   derivative: 'First derivative',

@@ -1,17 +1,16 @@
-import { Link, useRouter } from 'expo-router';
-import { useEffect, useState } from 'react';
+import { Link } from 'expo-router';
+import { lazy, Suspense, useEffect, useState } from 'react';
 import { Pressable, StyleSheet, View } from 'react-native';
-import { refreshSession } from '../../api/client';
 import { activeMembership, useSession } from '../../state/session';
 import { useLayoutSize } from '../../theme/layout';
 import { colors, radius, space, touch } from '../../theme/tokens';
 import { SyncIndicator } from '../../sync/SyncIndicator';
 import { Badge, Button, Text } from '../../ui';
-import { useSignOut } from '../auth/hooks';
 
 /**
  * What the app shell shows about the state of things: who is signed in (and in which lab), plus the sync indicator.
- * The sync indicator is the sync feature's (src/sync/SyncIndicator.tsx).
+ * The sync indicator is the sync feature's (src/sync/SyncIndicator.tsx). What talks to the server (sign out, the
+ * token refresh) is in accountActions.tsx, loaded after the first screen is drawn and only for someone signed in.
  */
 export function StatusArea() {
   const wide = useLayoutSize() === 'wide';
@@ -22,6 +21,8 @@ export function StatusArea() {
     </View>
   );
 }
+
+const SignOutButton = lazy(() => import('./accountActions').then((m) => ({ default: m.SignOutButton })));
 
 /**
  * The persisted session is read from storage on the client only, so the static page and the first client render
@@ -43,7 +44,9 @@ function useReauthenticate(signedIn: boolean) {
     if (!signedIn || typeof window === 'undefined') return;
     const check = () => {
       const s = useSession.getState();
-      if (!s.accessToken && !s.signedOutByServer && navigator.onLine !== false) void refreshSession().catch(() => undefined);
+      if (!s.accessToken && !s.signedOutByServer && navigator.onLine !== false) {
+        void import('./accountActions').then((m) => m.refreshSession()).catch(() => undefined);
+      }
     };
     check();
     window.addEventListener('online', check);
@@ -58,8 +61,6 @@ function AccountStatus({ wide }: { wide: boolean }) {
   const membership = useSession(activeMembership);
   const setActiveLab = useSession((s) => s.setActiveLab);
   const [switching, setSwitching] = useState(false);
-  const router = useRouter();
-  const signOut = useSignOut();
   useReauthenticate(mounted && Boolean(user));
 
   if (!mounted) return null;
@@ -92,14 +93,10 @@ function AccountStatus({ wide }: { wide: boolean }) {
         {labs.length > 1 ? (
           <Button kind="quiet" label="Switch lab" onPress={() => setSwitching(!switching)} testID="switch-lab" />
         ) : null}
-        <Button
-          kind="quiet"
-          label="Sign out"
-          // useSignOut asks first while changes wait for the server, and keeps them either way.
-          onPress={() => signOut.mutate(undefined, { onSuccess: (r) => r !== 'stayed' && router.replace('/sign-in') })}
-          busy={signOut.isPending}
-          testID="sign-out"
-        />
+        {/* Until its code is in, the same button in the same place, not yet pressable: nothing moves when it arrives. */}
+        <Suspense fallback={<Button kind="quiet" label="Sign out" disabled testID="sign-out-loading" />}>
+          <SignOutButton />
+        </Suspense>
       </View>
       {switching ? (
         <View style={styles.labList} role="list" aria-label="Your labs">

@@ -1,4 +1,4 @@
-import type { SectionIconName } from './icons';
+import type { SectionIconName } from './iconShapes';
 
 /** The four sections of Halfmark, in navigation order. */
 export const SECTIONS: { key: SectionIconName; href: string; label: string; hint: string }[] = [
