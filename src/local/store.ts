@@ -1,10 +1,13 @@
 /* eslint-disable @typescript-eslint/no-explicit-any -- rows come back from SQLite untyped; the *FromSql mappers
    at the bottom are the typed boundary. */
-// Repository over the local database. Every write is one transaction that also appends the record to the outbox,
-// and resolves only after COMMIT: the UI shows a reading as saved only once this promise has resolved.
-// Writes are queued one at a time because expo-sqlite on web has no exclusive transactions (a second BEGIN from an
-// interleaved write would fail or join the first).
-import type { SQLiteDatabase } from 'expo-sqlite';
+// Repository over the local database. Every write appends its record to the outbox atomically with it and
+// resolves only after COMMIT: the UI shows a reading as saved only once this promise has resolved.
+// A recording (mark, reading, checkpoint, run event) is one INSERT into a view whose trigger stores the row and its
+// outbox entry (migration 3): one statement, atomic on its own, one round trip to the database worker with the
+// statement prepared once. Run creation and edits, and the sync's writes, are BEGIN…COMMIT transactions.
+// Writes are queued one at a time because expo-sqlite on web has no exclusive transactions (a statement or a
+// second BEGIN from an interleaved write would join or break an open transaction).
+import type { SQLiteBindValue, SQLiteDatabase, SQLiteStatement } from 'expo-sqlite';
 import { newId } from './ids';
 import type {
   CheckpointRow,
@@ -21,7 +24,7 @@ import type {
   RunStatus,
 } from './types';
 
-type Db = Pick<SQLiteDatabase, 'runAsync' | 'getAllAsync' | 'getFirstAsync' | 'execAsync'>;
+type Db = Pick<SQLiteDatabase, 'runAsync' | 'getAllAsync' | 'getFirstAsync' | 'execAsync' | 'prepareAsync'>;
 type Entity = OutboxRow['entity'];
 
 const STATUS_AFTER: Partial<Record<RunEventKind, RunStatus>> = {
@@ -32,11 +35,40 @@ const STATUS_AFTER: Partial<Record<RunEventKind, RunStatus>> = {
   submit: 'submitted',
 };
 
+/**
+ * A recording on its way to the database: the row as it is being stored (known at once, so the screen can show it
+ * as saving) and the promise that resolves with it after COMMIT, or rejects if it was not stored.
+ */
+export interface Recording<T> {
+  row: T;
+  saved: Promise<T>;
+}
+
+export type ReadingValue = { pH: number | null; mV: number | null; pHSource: PHSource };
+
+// The recording statements (views of migration 3). Payloads are JSON.stringify of the row, as the sync expects.
+const INSERT = {
+  mark: 'INSERT INTO record_mark (id, run_id, kind, time_s, mono_ms, wall_ms, payload_json, queued_wall_ms) VALUES (?, ?, ?, ?, ?, ?, ?, ?)',
+  reading:
+    'INSERT INTO record_reading (id, run_id, mark_id, time_s, ph, mv, ph_source, replaces_id, reason, voided, wall_ms, payload_json, queued_wall_ms) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)',
+  checkpoint:
+    'INSERT INTO record_checkpoint (id, run_id, mark_id, time_s, burette_ml, replaces_id, reason, voided, wall_ms, payload_json, queued_wall_ms) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)',
+  event:
+    'INSERT INTO record_run_event (id, run_id, kind, mono_ms, wall_ms, data_json, payload_json, queued_wall_ms, status_after, status_payload_json) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)',
+} as const;
+
+/** What the bulk path of automation can record (see recordManyForAutomation). */
+export interface BulkRecorder {
+  mark(runId: string, kind: MarkKind, timeS: number, at: { monoMs: number; wallMs: number }): Promise<MarkRow>;
+  reading(mark: Pick<MarkRow, 'id' | 'runId' | 'timeS'>, value: ReadingValue): Promise<ReadingRow>;
+}
+
 export const LOCAL_ANALYST = { id: 'local-analyst', name: 'Analyst on this device' } as const;
 
 export class LocalStore {
   private queue: Promise<unknown> = Promise.resolve();
   private readonly committed = new Set<() => void>();
+  private readonly statements = new Map<string, Promise<SQLiteStatement>>();
   private constructor(
     private readonly db: Db,
     readonly device: DeviceRow,
@@ -63,9 +95,17 @@ export class LocalStore {
     return () => this.committed.delete(fn);
   }
 
+  /** Runs `work` after every earlier write has finished; `notify` tells onCommitted listeners once it succeeded. */
+  private enqueue<T>(work: () => Promise<T>, notify: boolean): Promise<T> {
+    const next = this.queue.then(work);
+    this.queue = next.catch(() => undefined);
+    if (notify) void next.then(() => this.committed.forEach((fn) => fn()), () => undefined);
+    return next;
+  }
+
   /** Runs `work` inside BEGIN…COMMIT after every earlier write has finished. */
   private write<T>(work: () => Promise<T>, notify = true): Promise<T> {
-    const next = this.queue.then(async () => {
+    return this.enqueue(async () => {
       await this.db.execAsync('BEGIN');
       try {
         const out = await work();
@@ -75,10 +115,29 @@ export class LocalStore {
         await this.db.execAsync('ROLLBACK').catch(() => undefined);
         throw e;
       }
-    });
-    this.queue = next.catch(() => undefined);
-    if (notify) void next.then(() => this.committed.forEach((fn) => fn()), () => undefined);
-    return next;
+    }, notify);
+  }
+
+  /** One statement, prepared once per page and reused: a single round trip to the database worker. */
+  private async runPrepared(sql: string, params: SQLiteBindValue[]): Promise<void> {
+    let st = this.statements.get(sql);
+    if (!st) {
+      st = this.db.prepareAsync(sql);
+      this.statements.set(sql, st);
+    }
+    try {
+      await (await st).executeAsync(...params);
+    } catch (e) {
+      // Not reused after a failure: resetting a statement whose last step failed reports that failure again.
+      this.statements.delete(sql);
+      void st.then((x) => x.finalizeAsync()).catch(() => undefined);
+      throw e;
+    }
+  }
+
+  /** A recording: the row now, and its single-statement insert queued behind earlier writes. */
+  private record<T>(row: T, insert: (row: T) => Promise<void>): Recording<T> {
+    return { row, saved: this.enqueue(() => insert(row).then(() => row), true) };
   }
 
   /**
@@ -92,6 +151,28 @@ export class LocalStore {
   /** For the sync: read access to the same database. */
   get syncDb(): Db {
     return this.db;
+  }
+
+  /**
+   * Automation only (benchmarks seeding a long run; the page reaches the store only with the opt-in of
+   * src/local/localDb.ts): many recordings in one transaction, with the same statements and outbox entries as
+   * one by one. The app never uses it: the screen confirms each recording on its own commit.
+   */
+  recordManyForAutomation(work: (rec: BulkRecorder) => Promise<void>): Promise<void> {
+    return this.write(() =>
+      work({
+        mark: async (runId, kind, timeS, at) => {
+          const m = this.markRow(runId, kind, timeS, at);
+          await this.insertMark(m);
+          return m;
+        },
+        reading: async (mark, value) => {
+          const r = this.readingRow({ mark, ...value, replacesId: null, reason: null, voided: false });
+          await this.insertReadingRow(r);
+          return r;
+        },
+      }),
+    );
   }
 
   private async outbox(entity: Entity, recordId: string, op: 'insert' | 'update', payload: unknown): Promise<void> {
@@ -175,75 +256,79 @@ export class LocalStore {
 
   /** A run event (clock, refill, discarded mark, submission); clock events also move the run's status. */
   addEvent(runId: string, kind: RunEventKind, at: { monoMs: number; wallMs: number }, data: Record<string, unknown> | null = null): Promise<RunEventRow> {
-    return this.write(async () => {
-      const ev: RunEventRow = { id: newId(), runId, kind, monoMs: at.monoMs, wallMs: at.wallMs, data };
-      await this.db.runAsync(
-        'INSERT INTO run_events (id, run_id, kind, mono_ms, wall_ms, data_json) VALUES (?, ?, ?, ?, ?, ?)',
-        ev.id, runId, kind, ev.monoMs, ev.wallMs, data ? JSON.stringify(data) : null,
-      );
-      await this.outbox('run_event', ev.id, 'insert', ev);
-      const status = STATUS_AFTER[kind];
-      if (status) {
-        const res = await this.db.runAsync('UPDATE runs SET status = ?, updated_wall_ms = ?, local_version = local_version + 1 WHERE id = ?', status, ev.wallMs, runId);
-        if (res.changes !== 1) throw new Error(`run ${runId} is not on this device`);
-        await this.outbox('run', runId, 'update', { id: runId, status });
-      }
-      return ev;
-    });
+    const ev: RunEventRow = { id: newId(), runId, kind, monoMs: at.monoMs, wallMs: at.wallMs, data };
+    const status = STATUS_AFTER[kind] ?? null;
+    return this.record(ev, (e) =>
+      this.runPrepared(INSERT.event, [
+        e.id, runId, kind, e.monoMs, e.wallMs, data ? JSON.stringify(data) : null, JSON.stringify(e), Date.now(),
+        status, status ? JSON.stringify({ id: runId, status }) : null,
+      ]),
+    ).saved;
+  }
+
+  /** A tap: the instant is fixed now; the value typed for it later keeps this time. */
+  recordMark(runId: string, kind: MarkKind, timeS: number, at: { monoMs: number; wallMs: number }): Recording<MarkRow> {
+    return this.record(this.markRow(runId, kind, timeS, at), (m) => this.insertMark(m));
   }
 
   addMark(runId: string, kind: MarkKind, timeS: number, at: { monoMs: number; wallMs: number }): Promise<MarkRow> {
-    return this.write(async () => {
-      const m: MarkRow = { id: newId(), runId, kind, timeS, monoMs: at.monoMs, wallMs: at.wallMs };
-      await this.db.runAsync('INSERT INTO marks (id, run_id, kind, time_s, mono_ms, wall_ms) VALUES (?, ?, ?, ?, ?, ?)', m.id, runId, kind, timeS, m.monoMs, m.wallMs);
-      await this.outbox('mark', m.id, 'insert', m);
-      return m;
-    });
+    return this.recordMark(runId, kind, timeS, at).saved;
   }
 
   /** The value typed for a mark; its time is the mark's (taken at the tap), never the moment of typing. */
-  addReading(mark: MarkRow, value: { pH: number | null; mV: number | null; pHSource: PHSource }): Promise<ReadingRow> {
-    return this.insertReading({ mark, ...value, replacesId: null, reason: null, voided: false });
+  recordReading(mark: Pick<MarkRow, 'id' | 'runId' | 'timeS'>, value: ReadingValue): Recording<ReadingRow> {
+    return this.record(this.readingRow({ mark, ...value, replacesId: null, reason: null, voided: false }), (r) => this.insertReadingRow(r));
   }
 
-  correctReading(original: ReadingRow, value: { pH: number | null; mV: number | null; pHSource: PHSource }, reason: string): Promise<ReadingRow> {
-    return this.insertReading({ mark: { id: original.markId, runId: original.runId, timeS: original.timeS }, ...value, replacesId: original.id, reason: requireReason(reason), voided: false });
+  addReading(mark: Pick<MarkRow, 'id' | 'runId' | 'timeS'>, value: ReadingValue): Promise<ReadingRow> {
+    return this.recordReading(mark, value).saved;
+  }
+
+  correctReading(original: ReadingRow, value: ReadingValue, reason: string): Promise<ReadingRow> {
+    const r = this.readingRow({ mark: { id: original.markId, runId: original.runId, timeS: original.timeS }, ...value, replacesId: original.id, reason: requireReason(reason), voided: false });
+    return this.record(r, (x) => this.insertReadingRow(x)).saved;
   }
 
   deleteReading(original: ReadingRow, reason: string): Promise<ReadingRow> {
-    return this.insertReading({ mark: { id: original.markId, runId: original.runId, timeS: original.timeS }, pH: null, mV: null, pHSource: 'void', replacesId: original.id, reason: requireReason(reason), voided: true });
+    const r = this.readingRow({ mark: { id: original.markId, runId: original.runId, timeS: original.timeS }, pH: null, mV: null, pHSource: 'void', replacesId: original.id, reason: requireReason(reason), voided: true });
+    return this.record(r, (x) => this.insertReadingRow(x)).saved;
   }
 
-  private insertReading(x: { mark: Pick<MarkRow, 'id' | 'runId' | 'timeS'>; pH: number | null; mV: number | null; pHSource: PHSource; replacesId: string | null; reason: string | null; voided: boolean }): Promise<ReadingRow> {
-    return this.write(async () => {
-      const r: ReadingRow = { id: newId(), runId: x.mark.runId, markId: x.mark.id, timeS: x.mark.timeS, pH: x.pH, mV: x.mV, pHSource: x.pHSource, replacesId: x.replacesId, reason: x.reason, voided: x.voided, wallMs: Date.now() };
-      await this.db.runAsync(
-        `INSERT INTO readings (id, run_id, mark_id, time_s, ph, mv, ph_source, replaces_id, reason, voided, wall_ms) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
-        r.id, r.runId, r.markId, r.timeS, r.pH, r.mV, r.pHSource, r.replacesId, r.reason, r.voided ? 1 : 0, r.wallMs,
-      );
-      await this.outbox('reading', r.id, 'insert', r);
-      return r;
-    });
+  recordCheckpoint(mark: Pick<MarkRow, 'id' | 'runId' | 'timeS'>, buretteMl: number): Recording<CheckpointRow> {
+    return this.record(this.checkpointRow({ mark, buretteMl, replacesId: null, reason: null, voided: false }), (c) => this.insertCheckpointRow(c));
   }
 
-  addCheckpoint(mark: MarkRow, buretteMl: number): Promise<CheckpointRow> {
-    return this.insertCheckpoint({ mark, buretteMl, replacesId: null, reason: null, voided: false });
+  addCheckpoint(mark: Pick<MarkRow, 'id' | 'runId' | 'timeS'>, buretteMl: number): Promise<CheckpointRow> {
+    return this.recordCheckpoint(mark, buretteMl).saved;
   }
 
   correctCheckpoint(original: CheckpointRow, buretteMl: number | null, reason: string): Promise<CheckpointRow> {
-    return this.insertCheckpoint({ mark: { id: original.markId, runId: original.runId, timeS: original.timeS }, buretteMl, replacesId: original.id, reason: requireReason(reason), voided: buretteMl === null });
+    const c = this.checkpointRow({ mark: { id: original.markId, runId: original.runId, timeS: original.timeS }, buretteMl, replacesId: original.id, reason: requireReason(reason), voided: buretteMl === null });
+    return this.record(c, (x) => this.insertCheckpointRow(x)).saved;
   }
 
-  private insertCheckpoint(x: { mark: Pick<MarkRow, 'id' | 'runId' | 'timeS'>; buretteMl: number | null; replacesId: string | null; reason: string | null; voided: boolean }): Promise<CheckpointRow> {
-    return this.write(async () => {
-      const c: CheckpointRow = { id: newId(), runId: x.mark.runId, markId: x.mark.id, timeS: x.mark.timeS, buretteMl: x.buretteMl, replacesId: x.replacesId, reason: x.reason, voided: x.voided, wallMs: Date.now() };
-      await this.db.runAsync(
-        'INSERT INTO checkpoints (id, run_id, mark_id, time_s, burette_ml, replaces_id, reason, voided, wall_ms) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)',
-        c.id, c.runId, c.markId, c.timeS, c.buretteMl, c.replacesId, c.reason, c.voided ? 1 : 0, c.wallMs,
-      );
-      await this.outbox('checkpoint', c.id, 'insert', c);
-      return c;
-    });
+  private markRow(runId: string, kind: MarkKind, timeS: number, at: { monoMs: number; wallMs: number }): MarkRow {
+    return { id: newId(), runId, kind, timeS, monoMs: at.monoMs, wallMs: at.wallMs };
+  }
+
+  private readingRow(x: { mark: Pick<MarkRow, 'id' | 'runId' | 'timeS'>; pH: number | null; mV: number | null; pHSource: PHSource; replacesId: string | null; reason: string | null; voided: boolean }): ReadingRow {
+    return { id: newId(), runId: x.mark.runId, markId: x.mark.id, timeS: x.mark.timeS, pH: x.pH, mV: x.mV, pHSource: x.pHSource, replacesId: x.replacesId, reason: x.reason, voided: x.voided, wallMs: Date.now() };
+  }
+
+  private checkpointRow(x: { mark: Pick<MarkRow, 'id' | 'runId' | 'timeS'>; buretteMl: number | null; replacesId: string | null; reason: string | null; voided: boolean }): CheckpointRow {
+    return { id: newId(), runId: x.mark.runId, markId: x.mark.id, timeS: x.mark.timeS, buretteMl: x.buretteMl, replacesId: x.replacesId, reason: x.reason, voided: x.voided, wallMs: Date.now() };
+  }
+
+  private insertMark(m: MarkRow): Promise<void> {
+    return this.runPrepared(INSERT.mark, [m.id, m.runId, m.kind, m.timeS, m.monoMs, m.wallMs, JSON.stringify(m), Date.now()]);
+  }
+
+  private insertReadingRow(r: ReadingRow): Promise<void> {
+    return this.runPrepared(INSERT.reading, [r.id, r.runId, r.markId, r.timeS, r.pH, r.mV, r.pHSource, r.replacesId, r.reason, r.voided ? 1 : 0, r.wallMs, JSON.stringify(r), Date.now()]);
+  }
+
+  private insertCheckpointRow(c: CheckpointRow): Promise<void> {
+    return this.runPrepared(INSERT.checkpoint, [c.id, c.runId, c.markId, c.timeS, c.buretteMl, c.replacesId, c.reason, c.voided ? 1 : 0, c.wallMs, JSON.stringify(c), Date.now()]);
   }
 
   // ---------- outbox (for the sync) ----------

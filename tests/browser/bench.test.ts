@@ -1,4 +1,5 @@
 // The bench as a chemist uses it, on the built export served by the real server.
+import { execFileSync } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
@@ -111,6 +112,103 @@ for (const [label, viewport] of [
   });
 }
 
+describe('bench saving states', () => {
+  for (const [label, viewport] of [
+    ['phone', PHONE],
+    ['desktop', DESKTOP],
+  ] as const) {
+    it(`at ${label} width shows a tap and a typed value at once as saving, confirms them on commit, and keeps the value when a write fails`, async () => {
+      const app = await openApp('/bench', { viewport });
+      const { page } = app;
+      // The automation opt-in gives the test the page's store, to hold or fail its writes.
+      await page.evaluate(() => localStorage.setItem('halfmark.automation', '1'));
+      await page.reload();
+      await createRun(page, { ...DEMO, label: `Demo: saving states (${label})` });
+      await page.getByTestId('start-run').click();
+      await page.getByTestId('tap-reading').waitFor();
+      await page.evaluate(() => {
+        const w = window as unknown as Record<string, unknown>;
+        const s = (globalThis as unknown as { __halfmarkStore: Record<string, (...a: unknown[]) => Promise<unknown>> }).__halfmarkStore;
+        const write = s.runPrepared;
+        // Holds every recording write until released; or fails the next one.
+        w.holdWrites = () => {
+          let release = () => {};
+          const gate = new Promise<void>((r) => (release = r));
+          s.runPrepared = function (...a: unknown[]) {
+            return gate.then(() => write.apply(this, a));
+          };
+          w.releaseWrites = () => {
+            s.runPrepared = write;
+            release();
+          };
+        };
+        w.failNextWrite = (message: string) => {
+          s.runPrepared = function () {
+            s.runPrepared = write;
+            return Promise.reject(new Error(message));
+          };
+        };
+      });
+      const call = (fn: string, arg?: string) => page.evaluate(([f, a]) => (window as unknown as Record<string, (x?: string) => void>)[f](a), [fn, arg] as const);
+
+      // While the writes wait: the mark is on screen, marked as saving; typing goes on; the value shows as saving.
+      await call('holdWrites');
+      await tap(page, 'tap-reading');
+      await page.getByTestId('mark-saving-0').waitFor();
+      expect(await page.getByTestId('pending-0').getAttribute('aria-label')).toMatch(/saving the mark/);
+      await shot(page, `bench-saving-mark-${label}`);
+      await typeOnKeypad(page, '3.25');
+      await page.getByTestId('saving-reading-1').waitFor();
+      expect(await page.getByTestId('saving-reading-1').innerText()).toMatch(/3\.25[\s\S]*saving/);
+      expect(await readingCount(page)).toBe(0);
+      expect(await page.getByTestId('reading-row-1').count()).toBe(0);
+      await page.getByTestId('saving-reading-1').scrollIntoViewIfNeeded();
+      await shot(page, `bench-saving-reading-${label}`);
+
+      // Committed: the row is stored, numbered and counted; nothing is left saving.
+      await call('releaseWrites');
+      expect(await settledReadingCount(page, 1)).toBe(1);
+      expect(await page.getByTestId('reading-row-1').innerText()).toContain('3.25');
+      expect(await page.getByTestId('saving-reading-1').count()).toBe(0);
+      expect(await page.locator('[data-testid^="mark-saving-"]').count()).toBe(0);
+
+      // A value whose write fails: the error is shown, the mark and the typed text stay, nothing is counted.
+      await tap(page, 'tap-reading');
+      const markTime = await page.getByTestId('active-mark-time').innerText();
+      await page.locator('[data-testid^="mark-saving-"]').waitFor({ state: 'detached' });
+      await call('failNextWrite', 'the device storage refused the write (test)');
+      await typeOnKeypad(page, '3.40');
+      await page.getByTestId('write-error').waitFor();
+      expect(await page.getByTestId('write-error').innerText()).toMatch(/Not saved \(reading\): the device storage refused the write \(test\)/);
+      expect(await page.getByTestId('entry-error').innerText()).toMatch(/value is kept/);
+      expect(await page.getByTestId('active-mark-time').innerText()).toBe(markTime);
+      expect(await page.getByTestId('entry-display').innerText()).toContain('3.40');
+      expect(await page.getByTestId('saving-reading-2').count()).toBe(0);
+      expect(await readingCount(page)).toBe(1);
+      await page.getByTestId('entry-display').scrollIntoViewIfNeeded();
+      await shot(page, `bench-save-failed-${label}`);
+      // Saved on the second try, with the kept text.
+      await page.getByTestId('key-confirm').click();
+      expect(await settledReadingCount(page, 2)).toBe(2);
+      expect(await page.getByTestId('reading-row-2').innerText()).toContain('3.40');
+      await page.getByTestId('entry-idle').waitFor();
+
+      // A mark whose own write fails goes away again, with the error shown.
+      await call('failNextWrite', 'the device storage refused the mark (test)');
+      await tap(page, 'tap-reading');
+      await page.getByText(/Not saved \(mark\): the device storage refused the mark \(test\)/).waitFor();
+      await page.getByTestId('entry-idle').waitFor();
+      expect(await page.getByTestId('pending-0').count()).toBe(0);
+
+      // What the screen confirmed is what the local database holds.
+      await page.reload();
+      await page.getByTestId('tap-reading').waitFor();
+      expect(await settledReadingCount(page, 2)).toBe(2);
+      await app.close();
+    });
+  }
+});
+
 describe('bench timing and storage', () => {
   it('keeps the time of the tap when the pH is typed 5 s later, with two marks pending in any order', async () => {
     const app = await openApp('/bench', { viewport: PHONE });
@@ -156,6 +254,14 @@ describe('bench timing and storage', () => {
     await typeOnKeypad(page, '-123.4');
     await page.getByTestId('entry-idle').waitFor();
     expect(await page.getByTestId('reading-row-3').innerText()).toContain('-123.4 mV');
+
+    // From the keyboard: Enter on the focused Mark target marks too; a mark tapped by mistake can be discarded.
+    await page.getByTestId('tap-reading').focus();
+    await page.keyboard.press('Enter');
+    await page.getByTestId('active-mark-time').waitFor();
+    await page.locator('[data-testid^="mark-saving-"]').waitFor({ state: 'detached' });
+    await page.getByTestId('discard-mark').click();
+    await page.getByTestId('entry-idle').waitFor();
 
     // A correction keeps the original and needs a reason.
     await page.getByTestId('reading-row-1').click();
@@ -224,6 +330,46 @@ describe('bench timing and storage', () => {
       await page.getByTestId('tap-reading').waitFor();
       expect(await readingCount(page)).toBe(3);
       expect(await page.getByTestId('reading-row-3').innerText()).toContain('3.91');
+      await app.close();
+    } finally {
+      rmSync(profile, { recursive: true, force: true });
+    }
+  });
+
+  it('keeps every reading the screen confirmed when the browser is killed (SIGKILL) right after', async () => {
+    const profile = mkdtempSync(path.join(tmpdir(), 'halfmark-bench-kill-'));
+    try {
+      let app = await openApp('/bench', { viewport: PHONE, profileDir: profile });
+      let page = app.page;
+      const runId = await createRun(page, { ...DEMO, label: 'Demo: browser killed' });
+      await page.getByTestId('start-run').click();
+      const pHs = ['2.91', '3.35', '3.62', '3.84', '4.02'];
+      for (const pH of pHs) {
+        await tap(page, 'tap-reading');
+        await typeOnKeypad(page, pH);
+      }
+      // Confirmed on screen: counted, numbered, nothing left saving.
+      expect(await settledReadingCount(page, pHs.length)).toBe(pHs.length);
+      expect(await page.locator('[data-testid^="saving-"]').count()).toBe(0);
+      expect(app.errors).toEqual([]);
+      // The whole browser dies at once (no page close, no shutdown): this test started it, and kills its processes
+      // by id, found by the profile folder only this browser uses.
+      const pids = execFileSync('pgrep', ['-f', '--', profile], { encoding: 'utf8' }).trim().split('\n').filter(Boolean).map(Number);
+      expect(pids.length).toBeGreaterThan(0);
+      for (const pid of pids) {
+        try {
+          process.kill(pid, 'SIGKILL');
+        } catch {
+          /* already gone */
+        }
+      }
+      await app.close().catch(() => undefined);
+
+      app = await openApp(`/bench/run/${runId}`, { viewport: PHONE, profileDir: profile });
+      page = app.page;
+      await page.getByTestId('tap-reading').waitFor();
+      expect(await settledReadingCount(page, pHs.length)).toBe(pHs.length);
+      for (const [i, pH] of pHs.entries()) expect(await page.getByTestId(`reading-row-${i + 1}`).innerText()).toContain(pH);
       await app.close();
     } finally {
       rmSync(profile, { recursive: true, force: true });

@@ -1,64 +1,86 @@
 // Pending marks and the keypad. Marks wait in a list in tap order; any one can be chosen and completed while the
-// clock keeps running. The typed text stays until it has been saved, so a failed write loses nothing.
-import { memo, useCallback, useEffect, useState } from 'react';
+// clock keeps running. A mark shows at the tap, marked "saving" until its write commits; typing can start at once.
+// The typed text stays until it has been saved, so a failed write loses nothing.
+// The panel and its keypad stay mounted while the clock runs (idle: nothing to type for), and the chips and keys
+// are memoised on stable callbacks, so a tap or a keystroke re-renders the few elements it changes.
+import { memo, useCallback, useMemo, useRef, useState } from 'react';
 import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
 import type { MarkRow } from '../../local/types';
 import { colors, fonts, radius, space, touch } from '../../theme/tokens';
 import { Button, Segmented, Text } from '../../ui';
 import { formatClock } from './clock';
+import { CONTAINED } from './contained';
 import { Keypad } from './Keypad';
 import { MODE_RULES, parseEntry, pressKey, type EntryMode, type Key } from './keypad';
+import type { OpenMark } from './useBenchRun';
 
 export interface EntryPanelProps {
-  pending: readonly MarkRow[];
+  pending: readonly OpenMark[];
   hasElectrode: boolean;
   onReading(mark: MarkRow, mode: 'pH' | 'mV', value: number): Promise<unknown>;
   onCheckpoint(mark: MarkRow, buretteMl: number): Promise<unknown>;
   onDiscard(mark: MarkRow): Promise<unknown>;
 }
 
+const MODE_OPTIONS = [
+  { key: 'pH', label: 'pH' },
+  { key: 'mV', label: 'mV' },
+] as const;
+
 export const EntryPanel = memo(function EntryPanel({ pending, hasElectrode, onReading, onCheckpoint, onDiscard }: EntryPanelProps) {
-  const [activeId, setActiveId] = useState<string | null>(null);
+  // The mark the analyst chose; otherwise the oldest waiting mark is the one being typed.
+  const [chosenId, setChosenId] = useState<string | null>(null);
   // One draft per mark: typing for the next mark can begin while the last one is still being written, and a
   // failed write keeps its text.
   const [drafts, setDrafts] = useState<Record<string, string>>({});
   const [saving, setSaving] = useState<ReadonlySet<string>>(new Set());
   const [readingMode, setReadingMode] = useState<'pH' | 'mV'>('pH');
-  const [error, setError] = useState<string | null>(null);
+  // An entry error belongs to the mark it was made for (shown while that mark is the active one).
+  const [entryError, setEntryError] = useState<{ markId: string; text: string } | null>(null);
 
-  const open = pending.filter((m) => !saving.has(m.id));
-  // The oldest pending mark is the one being typed unless the analyst chose another.
-  const active = open.find((m) => m.id === activeId) ?? open[0] ?? null;
+  const open = useMemo(() => pending.filter((m) => !saving.has(m.id)), [pending, saving]);
+  const active = open.find((m) => m.id === chosenId) ?? open[0] ?? null;
   const mode: EntryMode = active?.kind === 'checkpoint' ? 'mL' : readingMode;
   const text = active ? (drafts[active.id] ?? '') : '';
-  const setText = useCallback((id: string, f: (t: string) => string) => setDrafts((d) => ({ ...d, [id]: f(d[id] ?? '') })), []);
-  useEffect(() => {
-    if (active && active.id !== activeId) {
-      setActiveId(active.id);
-      setError(null);
-    }
-  }, [active, activeId]);
+  const error = active && entryError?.markId === active.id ? entryError.text : null;
 
-  const onKey = useCallback(
-    (k: Key) => {
-      if (!active) return;
-      setError(null);
-      setText(active.id, (t) => pressKey(t, k, mode));
-    },
-    [active, mode, setText],
-  );
+  // The keys and the chips get callbacks that never change; they read the current entry through this ref.
+  const now = useRef({ active, text, mode });
+  now.current = { active, text, mode };
 
+  const onKey = useCallback((k: Key) => {
+    const { active: a, mode: md } = now.current;
+    if (!a) return;
+    setEntryError(null);
+    setDrafts((d) => ({ ...d, [a.id]: pressKey(d[a.id] ?? '', k, md) }));
+  }, []);
+
+  const choose = useCallback((id: string) => {
+    setChosenId(id);
+    setEntryError(null);
+  }, []);
+
+  const onMode = useCallback((k: 'pH' | 'mV') => {
+    const a = now.current.active;
+    setReadingMode(k);
+    if (a) setDrafts((d) => ({ ...d, [a.id]: '' }));
+    setEntryError(null);
+  }, []);
+
+  const handlers = useRef({ onReading, onCheckpoint, onDiscard });
+  handlers.current = { onReading, onCheckpoint, onDiscard };
   const confirm = useCallback(async () => {
-    if (!active) return;
-    const parsed = parseEntry(text, mode);
+    const { active: m, text: t, mode: md } = now.current;
+    if (!m) return;
+    const parsed = parseEntry(t, md);
     if (!parsed.ok) {
-      setError(parsed.error);
+      setEntryError({ markId: m.id, text: parsed.error });
       return;
     }
-    const m = active;
     setSaving((s) => new Set(s).add(m.id));
-    setActiveId(null);
-    const ok = m.kind === 'checkpoint' ? await onCheckpoint(m, parsed.value) : await onReading(m, mode as 'pH' | 'mV', parsed.value);
+    setChosenId(null);
+    const h = handlers.current;
+    const ok = m.kind === 'checkpoint' ? await h.onCheckpoint(m, parsed.value) : await h.onReading(m, md as 'pH' | 'mV', parsed.value);
     setSaving((s) => {
       const n = new Set(s);
       n.delete(m.id);
@@ -70,81 +92,98 @@ export const EntryPanel = memo(function EntryPanel({ pending, hasElectrode, onRe
         return rest;
       });
     } else {
-      setActiveId(m.id); // back to the mark whose value did not save; its text is still there
+      // Back to the mark whose value did not save, its text still there, and say so beside it (the reason is in the
+      // message at the top of the screen, which may be scrolled away on a phone).
+      setChosenId(m.id);
+      setEntryError({ markId: m.id, text: 'Not saved: the value is kept here. Save again.' });
     }
-  }, [active, text, mode, onCheckpoint, onReading]);
+  }, []);
 
-  if (!active) {
-    return (
-      <View style={styles.empty} testID="entry-idle">
-        <Text tone="muted">Tap Mark when you read the meter; type the value after. Marks wait here until typed.</Text>
-      </View>
-    );
-  }
+  const onDiscardActive = useCallback(() => {
+    const a = now.current.active;
+    if (a) void handlers.current.onDiscard(a);
+  }, []);
+
   const rule = MODE_RULES[mode];
   return (
     <View style={styles.wrap} testID="entry-panel">
-      <ScrollView horizontal contentContainerStyle={styles.chips} accessibilityLabel="Marks waiting for a value" testID="pending-marks">
-        {open.map((m, i) => {
-          const on = m.id === active.id;
-          return (
-            <Pressable
-              key={m.id}
-              accessibilityRole="button"
-              accessibilityState={{ selected: on }}
-              accessibilityLabel={`${m.kind === 'checkpoint' ? 'Checkpoint' : 'Reading'} marked at ${formatClock(m.timeS)}`}
-              testID={`pending-${i}`}
-              onPress={() => {
-                setActiveId(m.id);
-                setError(null);
-              }}
-              style={[styles.chip, on && styles.chipOn, m.kind === 'checkpoint' && styles.chipCheckpoint]}
-            >
-              <Text variant="caption" tone={on ? 'inverse' : 'muted'}>
-                {m.kind === 'checkpoint' ? 'Burette' : 'Reading'}
-              </Text>
-              <Text variant="label" tone={on ? 'inverse' : 'ink'} numeric>
-                {formatClock(m.timeS)}
-              </Text>
-            </Pressable>
-          );
-        })}
+      <ChipRow open={open} activeId={active?.id ?? null} onChoose={choose} />
+      <EntryHead kind={active?.kind ?? null} timeS={active?.timeS ?? null} readingMode={readingMode} onMode={onMode} />
+      <EntryDisplay text={text} unit={rule.unit} error={error} mvWithoutCalibration={mode === 'mV' && !hasElectrode} />
+      <Keypad onKey={onKey} onConfirm={confirm} confirmLabel={`Save ${rule.unit}`} confirmDisabled={!active} allowSign={rule.negative} />
+      <DiscardButton disabled={!active} onPress={onDiscardActive} />
+    </View>
+  );
+});
+
+// The parts of the panel, each memoised on what it shows, so a keystroke re-renders the display alone and a tap
+// the chips and the heading.
+
+const ChipRow = memo(function ChipRow({ open, activeId, onChoose }: { open: readonly OpenMark[]; activeId: string | null; onChoose(id: string): void }) {
+  return (
+    // One box of fixed size for the chips or the idle note, laid out on its own: a tap changes what is inside it,
+    // never the height of the panel (nothing below moves or is re-measured).
+    <View style={styles.slot}>
+      {/* Mounted even when empty (hidden): the first mark of a series then adds one chip, not a scroll view. */}
+      <ScrollView horizontal style={!activeId && styles.hidden} contentContainerStyle={styles.chips} accessibilityLabel="Marks waiting for a value" testID="pending-marks">
+        {open.map((m, i) => (
+          <MarkChip key={m.id} mark={m} index={i} on={m.id === activeId} onChoose={onChoose} />
+        ))}
       </ScrollView>
-      <View style={styles.head}>
-        <View style={styles.headText}>
-          <Text variant="label" tone="muted">
-            {active.kind === 'checkpoint' ? 'Burette reading' : 'Meter reading'} for the mark at
-          </Text>
-          <Text variant="heading" numeric testID="active-mark-time">
-            {formatClock(active.timeS)}
-          </Text>
-        </View>
-        {active.kind === 'reading' ? (
-          <Segmented
-            label="Meter shows"
-            testID="entry-mode"
-            value={readingMode}
-            options={[
-              { key: 'pH', label: 'pH' },
-              { key: 'mV', label: 'mV' },
-            ]}
-            onChange={(k) => {
-              setReadingMode(k);
-              setText(active.id, () => '');
-              setError(null);
-            }}
-          />
-        ) : null}
+      <IdleNote hidden={Boolean(activeId)} />
+    </View>
+  );
+});
+
+// Shown while no mark waits; hidden, not unmounted, while one does (the tap then only flips its display).
+const IdleNote = memo(function IdleNote({ hidden }: { hidden: boolean }) {
+  return (
+    <View style={[styles.empty, hidden && styles.hidden]} testID={hidden ? undefined : 'entry-idle'}>
+      <Text variant="caption" tone="muted">
+        Tap Mark when you read the meter; type the value after. Marks wait here until typed.
+      </Text>
+    </View>
+  );
+});
+
+const EntryHead = memo(function EntryHead({ kind, timeS, readingMode, onMode }: { kind: MarkRow['kind'] | null; timeS: number | null; readingMode: 'pH' | 'mV'; onMode(k: 'pH' | 'mV'): void }) {
+  return (
+    <View style={styles.head}>
+      <View style={styles.headText}>
+        <Text variant="label" tone="muted">
+          {kind ? `${kind === 'checkpoint' ? 'Burette reading' : 'Meter reading'} for the mark at` : 'No mark waiting'}
+        </Text>
+        {/* One element either way (a tap updates it rather than swapping it). */}
+        <Text variant="heading" numeric tone={timeS === null ? 'muted' : 'ink'} testID={timeS === null ? undefined : 'active-mark-time'}>
+          {timeS === null ? '--:--.-' : formatClock(timeS)}
+        </Text>
       </View>
-      <View style={[styles.display, error ? styles.displayError : null]} testID="entry-display" accessibilityLabel={`Typed ${text || 'nothing'} ${rule.unit}`}>
+      <ModeSwitch hidden={kind === 'checkpoint'} value={readingMode} onChange={onMode} />
+    </View>
+  );
+});
+
+// pH or mV: kept mounted (hidden for a checkpoint) and memoised, so the heading's changes do not re-render it.
+const ModeSwitch = memo(function ModeSwitch({ hidden, value, onChange }: { hidden: boolean; value: 'pH' | 'mV'; onChange(k: 'pH' | 'mV'): void }) {
+  return (
+    <View style={hidden && styles.hidden}>
+      <Segmented label="Meter shows" testID="entry-mode" value={value} options={MODE_OPTIONS} onChange={onChange} />
+    </View>
+  );
+});
+
+const EntryDisplay = memo(function EntryDisplay({ text, unit, error, mvWithoutCalibration }: { text: string; unit: string; error: string | null; mvWithoutCalibration: boolean }) {
+  return (
+    <>
+      <View style={[styles.display, error ? styles.displayError : null]} testID="entry-display" accessibilityLabel={`Typed ${text || 'nothing'} ${unit}`}>
         <Text style={styles.displayText} numeric>
           {text || ' '}
         </Text>
         <Text variant="heading" tone="muted">
-          {rule.unit}
+          {unit}
         </Text>
       </View>
-      {mode === 'mV' && !hasElectrode ? (
+      {mvWithoutCalibration ? (
         <Text variant="caption" tone="warn" testID="mv-warning">
           No electrode calibration on this run: the value is kept in mV with no pH, and the analysis leaves it out.
         </Text>
@@ -154,16 +193,43 @@ export const EntryPanel = memo(function EntryPanel({ pending, hasElectrode, onRe
           {error}
         </Text>
       ) : null}
-      <Keypad onKey={onKey} onConfirm={confirm} confirmLabel={`Save ${rule.unit}`} allowSign={rule.negative} />
-      <Button kind="quiet" label="Discard this mark" testID="discard-mark" onPress={() => void onDiscard(active)} />
-    </View>
+    </>
   );
 });
 
+const DiscardButton = memo(function DiscardButton({ disabled, onPress }: { disabled: boolean; onPress(): void }) {
+  return <Button kind="quiet" label="Discard this mark" testID="discard-mark" disabled={disabled} onPress={onPress} />;
+});
+
+const MarkChip = memo(function MarkChip({ mark: m, index: i, on, onChoose }: { mark: OpenMark; index: number; on: boolean; onChoose(id: string): void }) {
+  return (
+    <Pressable
+      accessibilityRole="button"
+      accessibilityState={{ selected: on }}
+      accessibilityLabel={`${m.kind === 'checkpoint' ? 'Checkpoint' : 'Reading'} marked at ${formatClock(m.timeS)}${m.saving ? ', saving the mark' : ''}`}
+      testID={`pending-${i}`}
+      onPress={() => onChoose(m.id)}
+      style={[styles.chip, on && styles.chipOn, m.kind === 'checkpoint' && styles.chipCheckpoint]}
+    >
+      <Text variant="caption" tone={on ? 'inverse' : 'muted'}>
+        {m.kind === 'checkpoint' ? 'Burette' : 'Reading'}
+        {m.saving ? <Text variant="caption" tone={on ? 'inverse' : 'muted'} testID={`mark-saving-${i}`}>{' · saving…'}</Text> : null}
+      </Text>
+      <Text variant="label" tone={on ? 'inverse' : 'ink'} numeric>
+        {formatClock(m.timeS)}
+      </Text>
+    </Pressable>
+  );
+});
+
+const SLOT = 64;
+
 const styles = StyleSheet.create({
   wrap: { gap: space.sm },
-  empty: { padding: space.md, borderRadius: radius.md, backgroundColor: colors.sunken },
-  chips: { gap: space.sm, paddingVertical: space.xxs },
+  slot: { height: SLOT, ...CONTAINED },
+  empty: { height: SLOT, justifyContent: 'center', paddingHorizontal: space.md, borderRadius: radius.md, backgroundColor: colors.sunken },
+  hidden: { display: 'none' },
+  chips: { gap: space.sm, paddingVertical: space.xxs, alignItems: 'center', height: SLOT },
   chip: {
     minHeight: touch.min,
     minWidth: 96,
@@ -177,14 +243,16 @@ const styles = StyleSheet.create({
   },
   chipCheckpoint: { borderStyle: 'dashed' },
   chipOn: { backgroundColor: colors.ink, borderColor: colors.ink },
-  head: { flexDirection: 'row', alignItems: 'center', justifyContent: 'space-between', gap: space.sm },
+  // Fixed height and contained, like the slot above: the heading's text changes at every tap.
+  head: { flexDirection: 'row', alignItems: 'center', justifyContent: 'space-between', gap: space.sm, height: 56, ...CONTAINED },
   headText: { flexShrink: 1 },
   display: {
     flexDirection: 'row',
     alignItems: 'baseline',
     justifyContent: 'flex-end',
     gap: space.sm,
-    minHeight: 72,
+    height: 72,
+    ...CONTAINED,
     paddingHorizontal: space.lg,
     borderRadius: radius.md,
     borderWidth: 2,

@@ -1,8 +1,10 @@
 // Our own numeric keypad for a gloved finger: big keys, the value shown large above them, one confirm key.
+// The keys stay mounted and memoised: a tap or a keystroke re-renders only what it changes.
 import { memo } from 'react';
 import { Pressable, StyleSheet, View } from 'react-native';
 import { colors, fonts, radius, space } from '../../theme/tokens';
 import { Text } from '../../ui';
+import { CONTAINED } from './contained';
 import type { Key } from './keypad';
 
 const ROWS: Key[][] = [
@@ -25,42 +27,57 @@ export const Keypad = memo(function Keypad({ onKey, onConfirm, confirmLabel, con
   return (
     <View style={styles.pad} testID="keypad">
       {ROWS.map((row, i) => (
-        <View key={i} style={styles.row}>
-          {row.map((k) => (
-            <Pressable
-              key={k}
-              accessibilityRole="button"
-              accessibilityLabel={k === 'back' ? 'Delete last digit' : k === '.' ? 'Decimal point' : k}
-              testID={`key-${k === '.' ? 'dot' : k}`}
-              onPress={() => onKey(k)}
-              style={({ pressed }) => [styles.key, k === 'back' && styles.keyAlt, pressed && styles.pressed]}
-            >
-              <Text style={styles.keyText}>{k === 'back' ? '⌫' : k}</Text>
-            </Pressable>
-          ))}
-        </View>
+        <KeyRow key={i} keys={row} onKey={onKey} />
       ))}
       <View style={styles.row}>
-        {allowSign ? (
-          <Pressable accessibilityRole="button" accessibilityLabel="Change sign" testID="key-sign" onPress={() => onKey('-')} style={({ pressed }) => [styles.key, styles.keyAlt, styles.signKey, pressed && styles.pressed]}>
-            <Text style={styles.keyText}>±</Text>
-          </Pressable>
-        ) : null}
-        <Pressable
-          accessibilityRole="button"
-          accessibilityLabel={confirmLabel}
-          accessibilityState={{ disabled: Boolean(confirmDisabled) }}
-          disabled={confirmDisabled}
-          testID="key-confirm"
-          onPress={onConfirm}
-          style={({ pressed }) => [styles.key, styles.confirm, pressed && styles.pressed, confirmDisabled && styles.disabled]}
-        >
-          <Text variant="heading" tone="inverse">
-            {confirmLabel}
-          </Text>
-        </Pressable>
+        {allowSign ? <KeyButton k="-" onKey={onKey} /> : null}
+        <ConfirmKey label={confirmLabel} disabled={Boolean(confirmDisabled)} onConfirm={onConfirm} />
       </View>
     </View>
+  );
+});
+
+const KeyRow = memo(function KeyRow({ keys, onKey }: { keys: readonly Key[]; onKey(key: Key): void }) {
+  return (
+    <View style={styles.row}>
+      {keys.map((k) => (
+        <KeyButton key={k} k={k} onKey={onKey} />
+      ))}
+    </View>
+  );
+});
+
+const ConfirmKey = memo(function ConfirmKey({ label, disabled, onConfirm }: { label: string; disabled: boolean; onConfirm(): void }) {
+  return (
+    <Pressable
+      accessibilityRole="button"
+      accessibilityLabel={label}
+      accessibilityState={{ disabled }}
+      disabled={disabled}
+      testID="key-confirm"
+      onPress={onConfirm}
+      style={({ pressed }) => [styles.key, styles.confirm, pressed && styles.pressed, disabled && styles.disabled]}
+    >
+      <Text variant="heading" tone="inverse">
+        {label}
+      </Text>
+    </Pressable>
+  );
+});
+
+// One key. Memoised on a stable onKey, so typing re-renders the display, not the twelve keys.
+const KeyButton = memo(function KeyButton({ k, onKey }: { k: Key; onKey(key: Key): void }) {
+  const sign = k === '-';
+  return (
+    <Pressable
+      accessibilityRole="button"
+      accessibilityLabel={k === 'back' ? 'Delete last digit' : k === '.' ? 'Decimal point' : sign ? 'Change sign' : k}
+      testID={`key-${k === '.' ? 'dot' : sign ? 'sign' : k}`}
+      onPress={() => onKey(k)}
+      style={({ pressed }) => [styles.key, (k === 'back' || sign) && styles.keyAlt, sign && styles.signKey, pressed && styles.pressed]}
+    >
+      <Text style={styles.keyText}>{k === 'back' ? '⌫' : sign ? '±' : k}</Text>
+    </Pressable>
   );
 });
 
@@ -69,7 +86,8 @@ const styles = StyleSheet.create({
   row: { flexDirection: 'row', gap: space.sm },
   key: {
     flex: 1,
-    minHeight: 60,
+    height: 60,
+    ...CONTAINED,
     borderRadius: radius.md,
     backgroundColor: colors.surface,
     borderWidth: 1.5,
@@ -80,7 +98,7 @@ const styles = StyleSheet.create({
   keyAlt: { backgroundColor: colors.sunken },
   signKey: { flex: 0, minWidth: 80 },
   keyText: { fontSize: 28, lineHeight: 34, fontFamily: fonts.semibold, color: colors.ink },
-  confirm: { flex: 3, backgroundColor: colors.ok, borderColor: colors.ok, minHeight: 64 },
+  confirm: { flex: 3, backgroundColor: colors.ok, borderColor: colors.ok, height: 64 },
   pressed: { opacity: 0.75 },
   disabled: { opacity: 0.45 },
 });

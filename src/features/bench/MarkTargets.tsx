@@ -1,34 +1,22 @@
-// The tap targets: one huge "reading" target and a smaller "checkpoint" one. The time is taken at pointer-down —
-// from the event's own timestamp when the browser gives one, so a busy main thread does not delay the mark.
-import { memo, useRef } from 'react';
-import { Platform, Pressable, StyleSheet, View } from 'react-native';
+// The tap targets: one huge "reading" target and a smaller "checkpoint" one. The time is taken at the touch (see
+// TapTarget: on the web the pointerdown event's own timestamp, so a busy main thread does not delay the mark).
+import { memo } from 'react';
+import { StyleSheet, View } from 'react-native';
 import { colors, radius, space, touch } from '../../theme/tokens';
 import { Text } from '../../ui';
-import { monoNow } from './clockSource';
-import { usePointerDown } from './pointerDown';
+import { TapTarget } from './TapTarget';
 
 export const MarkTargets = memo(function MarkTargets({ disabled, onMark, layout }: { disabled: boolean; onMark(kind: 'reading' | 'checkpoint', monoMs: number): void; layout: 'phone' | 'wide' }) {
-  const readingRef = useRef<View>(null);
-  const checkpointRef = useRef<View>(null);
-  const readingDown = usePointerDown(readingRef, (t) => onMark('reading', t), !disabled);
-  const checkpointDown = usePointerDown(checkpointRef, (t) => onMark('checkpoint', t), !disabled);
-  const web = Platform.OS === 'web';
-  // Web: the pointerdown listener marks; onPress only serves the keyboard (Enter/Space), never a pointer twice.
-  // Phone: onPressIn is the touch-down.
-  const handlers = (kind: 'reading' | 'checkpoint', down: { handledRecently(): boolean }) =>
-    web ? { onPress: () => !down.handledRecently() && onMark(kind, monoNow()) } : { onPressIn: () => onMark(kind, monoNow()) };
   return (
     <View style={styles.row}>
-      <Pressable
-        accessibilityRole="button"
+      <TapTarget
         accessibilityLabel="Mark a reading now"
         accessibilityHint="Takes the time at the touch; type the pH after"
-        accessibilityState={{ disabled }}
         disabled={disabled}
         testID="tap-reading"
-        ref={readingRef}
-        {...handlers('reading', readingDown)}
-        style={({ pressed }) => [styles.big, layout === 'wide' && styles.bigWide, pressed && styles.bigPressed, disabled && styles.disabled]}
+        onTap={(t) => onMark('reading', t)}
+        style={[styles.big, layout === 'wide' && styles.bigWide, disabled && styles.disabled]}
+        pressedStyle={styles.bigPressed}
       >
         <Text variant="display" tone="inverse">
           Mark
@@ -36,16 +24,14 @@ export const MarkTargets = memo(function MarkTargets({ disabled, onMark, layout 
         <Text variant="label" tone="inverse">
           reading · time taken at the touch
         </Text>
-      </Pressable>
-      <Pressable
-        accessibilityRole="button"
+      </TapTarget>
+      <TapTarget
         accessibilityLabel="Mark a burette checkpoint now"
-        accessibilityState={{ disabled }}
         disabled={disabled}
         testID="tap-checkpoint"
-        ref={checkpointRef}
-        {...handlers('checkpoint', checkpointDown)}
-        style={({ pressed }) => [styles.small, pressed && styles.smallPressed, disabled && styles.disabled]}
+        onTap={(t) => onMark('checkpoint', t)}
+        style={[styles.small, disabled && styles.disabled]}
+        pressedStyle={styles.smallPressed}
       >
         <Text variant="heading" align="center">
           Burette
@@ -53,7 +39,7 @@ export const MarkTargets = memo(function MarkTargets({ disabled, onMark, layout 
         <Text variant="caption" tone="muted" align="center">
           checkpoint
         </Text>
-      </Pressable>
+      </TapTarget>
     </View>
   );
 });

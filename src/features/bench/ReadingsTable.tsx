@@ -1,28 +1,116 @@
 // Readings as a table (time, volume, pH), newest first. Only the newest rows are drawn while recording, so a run
-// of thousands of readings stays quick; the review can show them all.
-import { memo, useState } from 'react';
+// of thousands of readings stays quick; the review can show them all. Values whose write is still in flight are
+// listed on top as "saving…"; the stored rows below do not re-render when that list changes.
+import { memo, useCallback, useState } from 'react';
 import { Pressable, StyleSheet, View } from 'react-native';
 import type { CheckpointRow, ReadingRow } from '../../local/types';
 import { colors, radius, space, touch } from '../../theme/tokens';
 import { Button, Field, Text } from '../../ui';
 import { formatClock } from './clock';
+import { CONTAINED } from './contained';
 import type { Effective } from './effective';
 import { numberOrUndefined } from './setup';
+import type { UnsavedValue } from './useBenchRun';
 
 export interface ReadingsTableProps {
   readings: readonly Effective<ReadingRow>[];
   checkpoints: readonly Effective<CheckpointRow>[];
   volumeAt(timeS: number): number | null;
   limit?: number;
+  /** Values on their way to the local database (shown as saving, not yet counted). */
+  unsaved?: readonly UnsavedValue[];
   onCorrectReading?(eff: Effective<ReadingRow>, pH: number | null, reason: string): Promise<unknown>;
   onCorrectCheckpoint?(eff: Effective<CheckpointRow>, ml: number | null, reason: string): Promise<unknown>;
 }
 
 type Row = { kind: 'reading'; eff: Effective<ReadingRow>; n: number } | { kind: 'checkpoint'; eff: Effective<CheckpointRow>; n: number };
 
-export const ReadingsTable = memo(function ReadingsTable({ readings, checkpoints, volumeAt, limit = 25, onCorrectReading, onCorrectCheckpoint }: ReadingsTableProps) {
+const NO_UNSAVED: readonly UnsavedValue[] = [];
+
+export const ReadingsTable = memo(function ReadingsTable({ readings, checkpoints, volumeAt, limit = 25, unsaved = NO_UNSAVED, onCorrectReading, onCorrectCheckpoint }: ReadingsTableProps) {
+  const total = readings.length + checkpoints.length;
+  return (
+    <View style={styles.table} testID="readings-table" accessibilityRole="list" aria-label="Readings">
+      <TableHead />
+      {unsaved.length ? <UnsavedRows unsaved={unsaved} readingsBefore={readings.length} checkpointsBefore={checkpoints.length} volumeAt={volumeAt} /> : null}
+      <StoredRows readings={readings} checkpoints={checkpoints} volumeAt={volumeAt} limit={limit} onCorrectReading={onCorrectReading} onCorrectCheckpoint={onCorrectCheckpoint} />
+      {total === 0 && !unsaved.length ? (
+        <Text tone="muted" style={styles.emptyText}>
+          No readings yet.
+        </Text>
+      ) : null}
+      <TableNote />
+    </View>
+  );
+});
+
+// The fixed parts, memoised: a value being saved re-renders the table around them, not them.
+const TableHead = memo(function TableHead() {
+  return (
+    <View style={[styles.row, styles.headRow]}>
+      <Text variant="label" style={styles.cN}>#</Text>
+      <Text variant="label" style={styles.c}>Time</Text>
+      <Text variant="label" style={styles.c} align="right">mL</Text>
+      <Text variant="label" style={styles.c} align="right">pH</Text>
+    </View>
+  );
+});
+
+const TableNote = memo(function TableNote() {
+  return (
+    <Text variant="caption" tone="muted" style={styles.emptyText}>
+      * corrected: the original is kept. Tap a row to correct or delete it (with a reason).
+    </Text>
+  );
+});
+
+/** Values typed but not yet committed, newest first, numbered as they will be once stored. */
+function UnsavedRows({ unsaved, readingsBefore, checkpointsBefore, volumeAt }: { unsaved: readonly UnsavedValue[]; readingsBefore: number; checkpointsBefore: number; volumeAt(timeS: number): number | null }) {
+  let nR = readingsBefore;
+  let nC = checkpointsBefore;
+  const rows = unsaved.map((u) => ({ u, n: u.kind === 'reading' ? ++nR : ++nC })).reverse();
+  return (
+    <>
+      {rows.map(({ u, n }) => {
+        const v = volumeAt(u.row.timeS);
+        return (
+          <View
+            key={u.row.id}
+            style={[styles.row, styles.dataRow, styles.savingRow]}
+            testID={`saving-${u.kind}-${n}`}
+            accessibilityLabel={`${u.kind === 'reading' ? `Reading ${n}` : `Checkpoint ${n}`} at ${formatClock(u.row.timeS)}, saving`}
+          >
+            <Text numeric style={styles.cN} tone="muted">
+              {u.kind === 'reading' ? n : `B${n}`}
+            </Text>
+            <Text numeric style={styles.c} tone="muted">
+              {formatClock(u.row.timeS)}
+            </Text>
+            <Text numeric style={styles.c} align="right" tone="muted">
+              {u.kind === 'checkpoint' ? `${u.row.buretteMl?.toFixed(2)} read` : v === null ? '—' : v.toFixed(2)}
+            </Text>
+            <View style={[styles.c, styles.savingCell]}>
+              <Text numeric align="right" tone="muted">
+                {u.kind === 'reading' ? cellPH(u.row) : ''}
+              </Text>
+              <Text variant="caption" tone="muted" align="right">
+                saving…
+              </Text>
+            </View>
+          </View>
+        );
+      })}
+    </>
+  );
+}
+
+type StoredRowsProps = Pick<ReadingsTableProps, 'readings' | 'checkpoints' | 'volumeAt' | 'onCorrectReading' | 'onCorrectCheckpoint'> & { limit: number };
+
+const StoredRows = memo(function StoredRows({ readings, checkpoints, volumeAt, limit, onCorrectReading, onCorrectCheckpoint }: StoredRowsProps) {
   const [showAll, setShowAll] = useState(false);
   const [editing, setEditing] = useState<string | null>(null);
+  const toggle = useCallback((id: string) => setEditing((e) => (e === id ? null : id)), []);
+  const close = useCallback(() => setEditing(null), []);
   // Both lists come sorted by time; only the newest `limit` of each can be on screen, so only those are merged
   // (a run of thousands of readings does not sort them all at every tap).
   const total = readings.length + checkpoints.length;
@@ -33,63 +121,74 @@ export const ReadingsTable = memo(function ReadingsTable({ readings, checkpoints
   ].sort((a, b) => b.eff.current.timeS - a.eff.current.timeS);
   const shown = rows.slice(0, take);
   return (
-    <View style={styles.table} testID="readings-table" accessibilityRole="list" aria-label="Readings">
-      <View style={[styles.row, styles.headRow]}>
-        <Text variant="label" style={styles.cN}>#</Text>
-        <Text variant="label" style={styles.c}>Time</Text>
-        <Text variant="label" style={styles.c} align="right">mL</Text>
-        <Text variant="label" style={styles.c} align="right">pH</Text>
-      </View>
-      {shown.map((r) => {
-        const c = r.eff.current;
-        const v = volumeAt(c.timeS);
-        const corrected = r.eff.history.length > 1;
-        const open = editing === c.id;
-        return (
-          <View key={c.id} accessibilityRole="none">
-            <Pressable
-              accessibilityRole="button"
-              accessibilityLabel={`${r.kind === 'reading' ? `Reading ${r.n}` : `Checkpoint ${r.n}`} at ${formatClock(c.timeS)}; tap to correct`}
-              testID={r.kind === 'reading' ? `reading-row-${r.n}` : `checkpoint-row-${r.n}`}
-              onPress={() => setEditing(open ? null : c.id)}
-              style={[styles.row, r.kind === 'checkpoint' && styles.checkpointRow]}
-            >
-              <Text numeric style={styles.cN} tone="muted">
-                {r.kind === 'reading' ? r.n : `B${r.n}`}
-              </Text>
-              <Text numeric style={styles.c}>{formatClock(c.timeS)}</Text>
-              <Text numeric style={styles.c} align="right">
-                {r.kind === 'checkpoint' ? `${(c as CheckpointRow).buretteMl?.toFixed(2)} read` : v === null ? '—' : v.toFixed(2)}
-              </Text>
-              <Text numeric style={styles.c} align="right" tone={corrected ? 'accent' : 'ink'}>
-                {r.kind === 'reading' ? cellPH(c as ReadingRow) : ''}
-                {corrected ? ' *' : ''}
-              </Text>
-            </Pressable>
-            {open ? (
-              <Correction
-                kind={r.kind}
-                unit={r.kind === 'reading' ? 'pH' : 'mL'}
-                onCancel={() => setEditing(null)}
-                onSave={async (value, reason) => {
-                  const done = r.kind === 'reading' ? await onCorrectReading?.(r.eff as Effective<ReadingRow>, value, reason) : await onCorrectCheckpoint?.(r.eff as Effective<CheckpointRow>, value, reason);
-                  if (done !== undefined) setEditing(null);
-                }}
-                history={r.eff.history.map((h) => (r.kind === 'reading' ? cellPH(h as ReadingRow) : String((h as CheckpointRow).buretteMl ?? 'deleted')) + (h.reason ? ` — ${h.reason}` : ''))}
-              />
-            ) : null}
-          </View>
-        );
-      })}
+    <>
+      {shown.map((r) => (
+        <StoredRow
+          key={r.eff.current.id}
+          kind={r.kind}
+          eff={r.eff}
+          n={r.n}
+          volume={volumeAt(r.eff.current.timeS)}
+          open={editing === r.eff.current.id}
+          onToggle={toggle}
+          onClose={close}
+          onCorrectReading={onCorrectReading}
+          onCorrectCheckpoint={onCorrectCheckpoint}
+        />
+      ))}
       {total > shown.length ? <Button kind="quiet" label={`Show all ${total} rows`} onPress={() => setShowAll(true)} testID="show-all-rows" /> : null}
-      {total === 0 ? (
-        <Text tone="muted" style={styles.emptyText}>
-          No readings yet.
+    </>
+  );
+});
+
+// One stored row, memoised: a new reading adds a row and drops the oldest one shown; the others stay as they are.
+const StoredRow = memo(function StoredRow({
+  kind,
+  eff,
+  n,
+  volume: v,
+  open,
+  onToggle,
+  onClose,
+  onCorrectReading,
+  onCorrectCheckpoint,
+}: { kind: Row['kind']; eff: Row['eff']; n: number; volume: number | null; open: boolean; onToggle(id: string): void; onClose(): void } & Pick<ReadingsTableProps, 'onCorrectReading' | 'onCorrectCheckpoint'>) {
+  const r = { kind, eff, n } as Row;
+  const c = r.eff.current;
+  const corrected = r.eff.history.length > 1;
+  return (
+    <View accessibilityRole="none">
+      <Pressable
+        accessibilityRole="button"
+        accessibilityLabel={`${r.kind === 'reading' ? `Reading ${r.n}` : `Checkpoint ${r.n}`} at ${formatClock(c.timeS)}; tap to correct`}
+        testID={r.kind === 'reading' ? `reading-row-${r.n}` : `checkpoint-row-${r.n}`}
+        onPress={() => onToggle(c.id)}
+        style={[styles.row, styles.dataRow, r.kind === 'checkpoint' && styles.checkpointRow]}
+      >
+        <Text numeric style={styles.cN} tone="muted">
+          {r.kind === 'reading' ? r.n : `B${r.n}`}
         </Text>
+        <Text numeric style={styles.c}>{formatClock(c.timeS)}</Text>
+        <Text numeric style={styles.c} align="right">
+          {r.kind === 'checkpoint' ? `${(c as CheckpointRow).buretteMl?.toFixed(2)} read` : v === null ? '—' : v.toFixed(2)}
+        </Text>
+        <Text numeric style={styles.c} align="right" tone={corrected ? 'accent' : 'ink'}>
+          {r.kind === 'reading' ? cellPH(c as ReadingRow) : ''}
+          {corrected ? ' *' : ''}
+        </Text>
+      </Pressable>
+      {open ? (
+        <Correction
+          kind={r.kind}
+          unit={r.kind === 'reading' ? 'pH' : 'mL'}
+          onCancel={onClose}
+          onSave={async (value, reason) => {
+            const done = r.kind === 'reading' ? await onCorrectReading?.(r.eff as Effective<ReadingRow>, value, reason) : await onCorrectCheckpoint?.(r.eff as Effective<CheckpointRow>, value, reason);
+            if (done !== undefined) onClose();
+          }}
+          history={r.eff.history.map((h) => (r.kind === 'reading' ? cellPH(h as ReadingRow) : String((h as CheckpointRow).buretteMl ?? 'deleted')) + (h.reason ? ` — ${h.reason}` : ''))}
+        />
       ) : null}
-      <Text variant="caption" tone="muted" style={styles.emptyText}>
-        * corrected: the original is kept. Tap a row to correct or delete it (with a reason).
-      </Text>
     </View>
   );
 });
@@ -134,8 +233,13 @@ function Correction({ kind, unit, onSave, onCancel, history }: { kind: 'reading'
 const styles = StyleSheet.create({
   table: { borderWidth: 1, borderColor: colors.line, borderRadius: radius.md, backgroundColor: colors.surface, overflow: 'hidden' },
   row: { flexDirection: 'row', alignItems: 'center', minHeight: touch.min, paddingHorizontal: space.md, borderBottomWidth: 1, borderBottomColor: colors.grid },
+  // A data row is one line of fixed height, laid out on its own (contained.ts): without it every change elsewhere
+  // on the screen re-measured all the rows shown, most of the layout time of a tap.
+  dataRow: { height: touch.min, ...CONTAINED },
   headRow: { backgroundColor: colors.sunken, minHeight: 40 },
   checkpointRow: { backgroundColor: colors.paper },
+  savingRow: { backgroundColor: colors.sunken },
+  savingCell: { alignItems: 'flex-end' },
   cN: { width: 44 },
   c: { flex: 1 },
   correct: { padding: space.md, gap: space.sm, backgroundColor: colors.accentSoft },

@@ -11,10 +11,11 @@ import { CurveChart, GranChart } from '../charts/TitrationCharts';
 import { elapsedS, formatClock } from './clock';
 import { sci, withU } from './format';
 import { ReadingsTable } from './ReadingsTable';
-import type { BenchRun } from './useBenchRun';
-import { analyse } from './useLiveAnalysis';
+import { useRunView, type BenchRun } from './useBenchRun';
+import { analyse } from './liveAnalysis';
 
-export function RunReview({ run }: { run: BenchRun }) {
+export function RunReview({ run: bench }: { run: BenchRun }) {
+  const run = useRunView(bench);
   const wide = useLayoutSize() === 'wide';
   const record = run.record!;
   const setup = run.setup?.ok ? run.setup.setup : null!;
@@ -160,8 +161,8 @@ export function RunReview({ run }: { run: BenchRun }) {
           checkpoints={run.checkpoints}
           volumeAt={volumeAt}
           limit={40}
-          onCorrectReading={submitted ? undefined : (eff, pH, reason) => run.correctReading(eff, pH === null ? null : { pH, mV: null, pHSource: 'typed' }, reason).then(() => true)}
-          onCorrectCheckpoint={submitted ? undefined : (eff, ml, reason) => run.correctCheckpoint(eff, ml, reason).then(() => true)}
+          onCorrectReading={submitted ? undefined : (eff, pH, reason) => run.correctReading(eff, pH === null ? null : { pH, mV: null, pHSource: 'typed' }, reason)}
+          onCorrectCheckpoint={submitted ? undefined : (eff, ml, reason) => run.correctCheckpoint(eff, ml, reason)}
         />
       </Card>
     </Screen>

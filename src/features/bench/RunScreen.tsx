@@ -1,29 +1,52 @@
 // One run on the bench: before the start (plan, start button), while the clock runs (tap, type, live curve), and
 // after the finish (results, notes, submit for review).
 import { router } from 'expo-router';
-import { useCallback, useDeferredValue, useEffect, useMemo, useRef, useState } from 'react';
+import { memo, useCallback, useDeferredValue, useEffect, useMemo, useRef, useState } from 'react';
 import { StyleSheet, View } from 'react-native';
-import type { CheckpointRow, MarkRow, ReadingRow } from '../../local/types';
+import type { DeliveryMap } from '../../../shared/engine';
+import type { AnalysisResult } from '../../../shared/schemas/run-document';
+import type { MarkRow, ReadingRow } from '../../local/types';
 import { useLayoutSize } from '../../theme/layout';
 import { colors, radius, space } from '../../theme/tokens';
 import { Badge, Button, Card, Screen, Text } from '../../ui';
 import { CurveChart } from '../charts/TitrationCharts';
-import { elapsedS, sleepGapS } from './clock';
+import { elapsedS, sleepGapS, type ClockEvent, type ClockStatus } from './clock';
 import { ClockDisplay } from './ClockDisplay';
 import { monoNow } from './clockSource';
 import { cueSupported, playCue, primeCue } from './cue';
 import type { Effective } from './effective';
-import { EntryPanel } from './EntryPanel';
+import { EntryPanel, type EntryPanelProps } from './EntryPanel';
 import { parseEntry } from './keypad';
 import { LocalGate, StorageBadge } from './LocalGate';
 import { MarkTargets } from './MarkTargets';
-import { cueIntervalS } from './plan';
+import { cueIntervalS, type PlanResult } from './plan';
 import { PlanCard } from './PlanCard';
-import { ReadingsTable } from './ReadingsTable';
+import { ReadingsTable, type ReadingsTableProps } from './ReadingsTable';
 import { RunReview } from './RunReview';
 import { SafetyNote } from './SafetyNote';
-import { readingValue, useBenchRun, type BenchRun } from './useBenchRun';
-import { useLiveAnalysis } from './useLiveAnalysis';
+import type { Refill } from './document';
+import type { RunSetup } from './setup';
+import {
+  readingValue,
+  useBenchRun,
+  useCheckpoints,
+  useClock,
+  useDelivery,
+  useOpenMarks,
+  usePlan,
+  useReadings,
+  type SetupResult,
+  useRunDocument,
+  useRunLabel,
+  useRunPresence,
+  useRunSetup,
+  useUnsaved,
+  useWriteError,
+  type BenchRun,
+  type RunActions,
+  type RunStore,
+} from './useBenchRun';
+import { useLiveAnalysis, type Analysis } from './useLiveAnalysis';
 import { useScreenAwake } from './wakeLock';
 import { Field } from '../../ui';
 import { numberOrUndefined } from './setup';
@@ -38,8 +61,12 @@ export function RunScreen({ runId }: { runId: string }) {
 
 function RunLoaded({ runId }: { runId: string }) {
   const run = useBenchRun(runId);
-  if (run.record === undefined) return <Screen title="Run" testID="screen-run"><Text tone="muted">Opening the run…</Text></Screen>;
-  if (run.record === null) {
+  const presence = useRunPresence(run.runStore);
+  const setup = useRunSetup(run.runStore);
+  const { status } = useClock(run.runStore);
+  const label = useRunLabel(run.runStore);
+  if (presence === 'loading') return <Screen title="Run" testID="screen-run"><Text tone="muted">Opening the run…</Text></Screen>;
+  if (presence === 'missing') {
     return (
       <Screen title="Run not found" testID="screen-run">
         <Text>This run is not on this device.</Text>
@@ -47,61 +74,176 @@ function RunLoaded({ runId }: { runId: string }) {
       </Screen>
     );
   }
-  if (!run.setup?.ok) {
+  if (!setup?.ok) {
     return (
-      <Screen title={run.record.run.label} testID="screen-run">
+      <Screen title={label} testID="screen-run">
         <Card tone="danger" title="The stored setup of this run is not readable">
-          <Text>{run.setup?.error}</Text>
+          <Text>{setup?.error}</Text>
         </Card>
       </Screen>
     );
   }
-  if (run.status === 'finished') return <RunReview run={run} />;
-  return <RunBench run={run} />;
+  if (status === 'finished') return <RunReview run={run} />;
+  return <RunBench run={run} setup={setup.setup} />;
 }
 
-function RunBench({ run }: { run: BenchRun }) {
+/**
+ * The recording screen. It subscribes only to what changes its frame (the clock, the setup, checkpoints); a tap, a
+ * typed value or a stored reading re-renders only the parts that show them, which subscribe to those slices.
+ */
+const RunBench = memo(function RunBench({ run, setup }: { run: BenchRun; setup: RunSetup }) {
+  const { runStore: rs, actions } = run;
   const size = useLayoutSize();
   const wide = size === 'wide';
-  const setup = run.setup?.ok ? run.setup.setup : null!;
-  const live = run.status === 'running' || run.status === 'paused';
+  const { clockEvents, status } = useClock(rs);
+  const live = status === 'running' || status === 'paused';
   const wake = useScreenAwake(live);
-  // The curve and the analysis follow a moment behind the taps: React renders them after the urgent update
-  // (the new mark or row), so a long run never delays what the finger just did.
-  const deferredReadings = useDeferredValue(run.readings);
-  const deferredDoc = useDeferredValue(run.built?.doc ?? null);
-  const analysis = useLiveAnalysis(deferredDoc, run.status === 'running' || run.status === 'paused');
+  const setupResult = useRunSetup(rs);
+  const plan = usePlan(setupResult);
+  const { refills, deliveryMap } = useDelivery(rs, setupResult);
+  const label = useRunLabel(rs);
+  const writeError = useWriteError(rs);
+  const localState = run.local.status === 'ready' ? run.local : null;
+
+  const { mark, enterReading, correctReading, correctCheckpoint } = actions;
+  const onMark = useCallback((kind: 'reading' | 'checkpoint', monoMs: number) => void mark(kind, monoMs), [mark]);
+  const onReading = useCallback((m: MarkRow, mode: 'pH' | 'mV', value: number) => enterReading(m, readingValue(setup, mode, value)), [enterReading, setup]);
+  const onCorrectReading = useCallback(
+    (eff: Effective<ReadingRow>, pH: number | null, reason: string) => {
+      if (pH !== null) {
+        const p = parseEntry(String(pH), 'pH');
+        if (!p.ok) return Promise.resolve(undefined);
+      }
+      // Undefined when not saved: the correction form stays open with its text, beside the error.
+      return correctReading(eff, pH === null ? null : { pH, mV: null, pHSource: 'typed' }, reason);
+    },
+    [correctReading],
+  );
+  const volumeAt = useCallback((t: number) => (deliveryMap ? Math.max(0, deliveryMap.volumeAt(t)) : null), [deliveryMap]);
+
+  const header = <RunBadges status={status} localState={localState} sleepWarning={live && wake !== 'held'} />;
+  const controls = <RunControls clockEvents={clockEvents} status={status} plan={plan} onClock={actions.clockAction} />;
+
+  const tapArea =
+    status === 'paused' ? (
+      <RefillPanel onResume={actions.clockAction} />
+    ) : status === 'running' ? (
+      <View style={styles.tapArea}>
+        <MarkTargets disabled={false} onMark={onMark} layout={wide ? 'wide' : 'phone'} />
+        <LiveEntry rs={rs} hasElectrode={Boolean(setup.electrode)} onReading={onReading} onCheckpoint={actions.enterCheckpoint} onDiscard={actions.discardMark} />
+      </View>
+    ) : null;
+
+  const results = <LiveResults rs={rs} setup={setupResult} refills={refills} deliveryMap={deliveryMap} plan={plan} live={live} showChart={status !== 'ready'} height={wide ? 320 : 240} />;
+  const table = <LiveTable rs={rs} volumeAt={volumeAt} onCorrectReading={onCorrectReading} onCorrectCheckpoint={correctCheckpoint} />;
+  const errorBar = writeError ? (
+    <Card tone="danger" testID="write-error">
+      <Text accessibilityRole="alert">{writeError}</Text>
+      <Button kind="secondary" label="Dismiss" onPress={actions.clearWriteError} />
+    </Card>
+  ) : null;
+
+  const before =
+    status === 'ready' ? (
+      <>
+        <PlanCard plan={plan} />
+        <SafetyNote compact />
+      </>
+    ) : null;
+
+  return (
+    <Screen title={label} subtitle={status === 'ready' ? 'Fill the burette, read the start, start the drip and the clock together.' : undefined} actions={header} testID="screen-run">
+      {errorBar}
+      {wide ? (
+        <View style={styles.columns}>
+          <View style={styles.left}>
+            {controls}
+            {tapArea}
+          </View>
+          <View style={styles.right}>
+            {results}
+            {before}
+            {status !== 'ready' ? table : null}
+          </View>
+        </View>
+      ) : (
+        <>
+          {controls}
+          {tapArea}
+          {results}
+          {before}
+          {status !== 'ready' ? table : null}
+        </>
+      )}
+    </Screen>
+  );
+});
+
+/**
+ * The live estimates and the curve (adjacent in both layouts). They follow the stored readings a moment behind the
+ * taps: React renders them after the urgent update, and the analysis runs off the main thread, so a long run never
+ * delays what the finger just did.
+ */
+const LiveResults = memo(function LiveResults({ rs, setup, refills, deliveryMap, plan, live, showChart, height }: { rs: RunStore; setup: SetupResult; refills: Refill[]; deliveryMap: DeliveryMap | null; plan: PlanResult | null; live: boolean; showChart: boolean; height: number }) {
+  const readings = useReadings(rs);
+  const deferredReadings = useDeferredValue(readings);
+  const built = useRunDocument(rs, setup, refills);
+  const analysis = useLiveAnalysis(built?.doc ?? null, live);
+  return (
+    <>
+      {live ? <LiveEstimates count={readings.length} analysis={analysis} /> : null}
+      {showChart ? <LiveChart readings={deferredReadings} deliveryMap={deliveryMap} plan={plan} result={analysis?.result ?? null} height={height} /> : null}
+    </>
+  );
+});
+
+/** The entry panel with the marks waiting for a value (it alone re-renders on a tap). */
+const LiveEntry = memo(function LiveEntry({ rs, ...props }: { rs: RunStore } & Omit<EntryPanelProps, 'pending'>) {
+  const pending = useOpenMarks(rs);
+  return <EntryPanel pending={pending} {...props} />;
+});
+
+/** The readings table with the values being saved on top. */
+const LiveTable = memo(function LiveTable({ rs, ...props }: { rs: RunStore } & Pick<ReadingsTableProps, 'volumeAt' | 'onCorrectReading' | 'onCorrectCheckpoint'>) {
+  const readings = useReadings(rs);
+  const checkpoints = useCheckpoints(rs);
+  const unsaved = useUnsaved(rs);
+  return <ReadingsTable readings={readings} checkpoints={checkpoints} unsaved={unsaved} {...props} />;
+});
+
+const RunBadges = memo(function RunBadges({ status, localState, sleepWarning }: { status: ClockStatus; localState: Extract<BenchRun['local'], { status: 'ready' }> | null; sleepWarning: boolean }) {
+  return (
+    <View style={styles.badges}>
+      <Badge tone={status === 'running' ? 'accent' : status === 'paused' ? 'warn' : 'neutral'} label={status === 'running' ? 'Clock running' : status === 'paused' ? 'Paused for refill' : 'Not started'} testID="run-status" />
+      {localState ? <StorageBadge state={localState} /> : null}
+      {sleepWarning ? <Badge tone="warn" label="Screen may sleep" testID="wake-state" /> : null}
+    </View>
+  );
+});
+
+/** Clock, start / pause / finish, the cadence cue, and the warning when the device slept. */
+const RunControls = memo(function RunControls({ clockEvents, status, plan, onClock }: { clockEvents: ClockEvent[]; status: ClockStatus; plan: PlanResult | null; onClock: RunActions['clockAction'] }) {
+  const live = status === 'running' || status === 'paused';
   const [confirmFinish, setConfirmFinish] = useState(false);
   const [cueOn, setCueOn] = useState(false);
   const [gap, setGap] = useState(0);
-  const localState = run.local.status === 'ready' ? run.local : null;
-
-  const points = useMemo(() => {
-    const map = run.deliveryMap;
-    if (!map) return [];
-    const out: { x: number; y: number }[] = [];
-    for (const { current: r } of deferredReadings) if (r.pH !== null) out.push({ x: Math.max(0, map.volumeAt(r.timeS)), y: r.pH });
-    return out;
-  }, [deferredReadings, run.deliveryMap]);
-  const predicted = useMemo(() => (run.plan?.ok && run.plan.plan.curve ? run.plan.plan.curve.map((p) => ({ x: p.volumeMl, y: p.pH })) : undefined), [run.plan]);
-  const volumeAt = useCallback((t: number) => (run.deliveryMap ? Math.max(0, run.deliveryMap.volumeAt(t)) : null), [run.deliveryMap]);
+  const eventsRef = useRef(clockEvents);
+  eventsRef.current = clockEvents;
 
   // Cue at the planned cadence, tighter near the predicted break.
-  const eventsRef = useRef(run.clockEvents);
-  eventsRef.current = run.clockEvents;
   useEffect(() => {
-    if (!cueOn || run.status !== 'running' || !run.plan?.ok) return;
-    const plan = run.plan.plan;
+    if (!cueOn || status !== 'running' || !plan?.ok) return;
+    const p = plan.plan;
     let timer: ReturnType<typeof setTimeout>;
     const tick = () => {
       const t = elapsedS(eventsRef.current, monoNow());
-      const gapS = cueIntervalS(plan, t);
-      playCue(gapS === plan.cadenceNearBreakS);
+      const gapS = cueIntervalS(p, t);
+      playCue(gapS === p.cadenceNearBreakS);
       timer = setTimeout(tick, gapS * 1000);
     };
-    timer = setTimeout(tick, cueIntervalS(plan, elapsedS(eventsRef.current, monoNow())) * 1000);
+    timer = setTimeout(tick, cueIntervalS(p, elapsedS(eventsRef.current, monoNow())) * 1000);
     return () => clearTimeout(timer);
-  }, [cueOn, run.status, run.plan]);
+  }, [cueOn, status, plan]);
 
   // A device that slept may have stopped performance.now(): warn if the wall clock ran ahead of it.
   useEffect(() => {
@@ -112,47 +254,24 @@ function RunBench({ run }: { run: BenchRun }) {
     return () => document.removeEventListener('visibilitychange', check);
   }, [live]);
 
-  const onMark = useCallback((kind: 'reading' | 'checkpoint', monoMs: number) => void run.mark(kind, monoMs), [run.mark]);
-  const onReading = useCallback((m: MarkRow, mode: 'pH' | 'mV', value: number) => run.enterReading(m, readingValue(setup, mode, value)), [run.enterReading, setup]);
-  const onCorrectReading = useCallback(
-    (eff: Effective<ReadingRow>, pH: number | null, reason: string) => {
-      if (pH !== null) {
-        const p = parseEntry(String(pH), 'pH');
-        if (!p.ok) return Promise.resolve(undefined);
-      }
-      return run.correctReading(eff, pH === null ? null : { pH, mV: null, pHSource: 'typed' }, reason).then((x) => (x === undefined ? true : x));
-    },
-    [run.correctReading],
-  );
-  const onCorrectCheckpoint = useCallback((eff: Effective<CheckpointRow>, ml: number | null, reason: string) => run.correctCheckpoint(eff, ml, reason).then(() => true), [run.correctCheckpoint]);
-
-  const status = run.status;
-  const header = (
-    <View style={styles.badges}>
-      <Badge tone={status === 'running' ? 'accent' : status === 'paused' ? 'warn' : 'neutral'} label={status === 'running' ? 'Clock running' : status === 'paused' ? 'Paused for refill' : 'Not started'} testID="run-status" />
-      {localState ? <StorageBadge state={localState} /> : null}
-      {live && wake !== 'held' ? <Badge tone="warn" label="Screen may sleep" testID="wake-state" /> : null}
-    </View>
-  );
-
-  const controls = (
+  return (
     <Card style={styles.clockCard}>
-      <ClockDisplay events={run.clockEvents} status={status} />
+      <ClockDisplay events={clockEvents} status={status} />
       {gap > 2 ? (
         <Text variant="caption" tone="warn" testID="clock-gap">
           The device clock ran {gap.toFixed(0)} s ahead of the run clock (the device may have slept). Add a burette checkpoint.
         </Text>
       ) : null}
       {status === 'ready' ? (
-        <Button size="large" wide label="Start the clock with the drip" testID="start-run" onPress={() => void run.clockAction('start')} />
+        <Button size="large" wide label="Start the clock with the drip" testID="start-run" onPress={() => void onClock('start')} />
       ) : confirmFinish ? (
         <View style={styles.row}>
-          <Button kind="danger" size="large" label="Finish the run" testID="confirm-finish" onPress={() => void run.clockAction('finish')} />
+          <Button kind="danger" size="large" label="Finish the run" testID="confirm-finish" onPress={() => void onClock('finish')} />
           <Button kind="secondary" size="large" label="Keep recording" onPress={() => setConfirmFinish(false)} />
         </View>
       ) : (
         <View style={styles.row}>
-          {status === 'running' ? <Button kind="secondary" size="large" label="Pause (refill)" testID="pause-run" onPress={() => void run.clockAction('pause')} /> : null}
+          {status === 'running' ? <Button kind="secondary" size="large" label="Pause (refill)" testID="pause-run" onPress={() => void onClock('pause')} /> : null}
           <Button kind="secondary" size="large" label="Finish…" testID="finish-run" onPress={() => setConfirmFinish(true)} />
           {cueSupported() ? (
             <Button
@@ -170,77 +289,38 @@ function RunBench({ run }: { run: BenchRun }) {
       )}
     </Card>
   );
+});
 
-  const tapArea =
-    status === 'paused' ? (
-      <RefillPanel onResume={(refill) => void run.clockAction('resume', { refill })} />
-    ) : status === 'running' ? (
-      <View style={styles.tapArea}>
-        <MarkTargets disabled={false} onMark={onMark} layout={wide ? 'wide' : 'phone'} />
-        <EntryPanel pending={run.pending} hasElectrode={Boolean(setup.electrode)} onReading={onReading} onCheckpoint={run.enterCheckpoint} onDiscard={run.discardMark} />
-      </View>
-    ) : null;
-
+/** Stored readings so far and the analysis's current estimates. */
+const LiveEstimates = memo(function LiveEstimates({ count, analysis }: { count: number; analysis: Analysis | null }) {
   const est = analysis?.result;
-  const estimates = live ? (
+  return (
     <Card testID="live-estimate">
       <View style={styles.estimates}>
-        <Estimate label="Readings" value={String(run.readings.length)} testID="reading-count" />
+        <Estimate label="Readings" value={String(count)} testID="reading-count" />
         <Estimate label="Ve now" value={est?.equivalencePoints.length ? `${est.equivalencePoints.map((e) => e.volumeMl.toFixed(2)).join(', ')} mL` : '—'} testID="estimate-ve" />
         <Estimate label="pKa now" value={est?.pKa.length ? est.pKa.map((p) => p.toFixed(2)).join(', ') : '—'} testID="estimate-pka" />
       </View>
-      {analysis?.error && run.readings.length >= 7 ? <Text variant="caption" tone="muted">{analysis.error}</Text> : null}
-    </Card>
-  ) : null;
-
-  const chart = (
-    <Card title="Curve" testID="live-chart-card">
-      <CurveChart readings={points} predicted={predicted} result={est ?? null} height={wide ? 320 : 240} testID="live-chart" />
+      {analysis?.error && count >= 7 ? <Text variant="caption" tone="muted">{analysis.error}</Text> : null}
     </Card>
   );
-  const table = <ReadingsTable readings={run.readings} checkpoints={run.checkpoints} volumeAt={volumeAt} onCorrectReading={onCorrectReading} onCorrectCheckpoint={onCorrectCheckpoint} />;
-  const errorBar = run.writeError ? (
-    <Card tone="danger" testID="write-error">
-      <Text accessibilityRole="alert">{run.writeError}</Text>
-      <Button kind="secondary" label="Dismiss" onPress={run.clearWriteError} />
-    </Card>
-  ) : null;
+});
 
-  const before =
-    status === 'ready' ? (
-      <>
-        <PlanCard plan={run.plan} />
-        <SafetyNote compact />
-      </>
-    ) : null;
-
+/** The curve so far on the volume axis, with the plan's prediction and the analysis's markers. */
+const LiveChart = memo(function LiveChart({ readings, deliveryMap, plan, result, height }: { readings: readonly Effective<ReadingRow>[]; deliveryMap: DeliveryMap | null; plan: PlanResult | null; result: AnalysisResult | null; height: number }) {
+  const points = useMemo(() => {
+    if (!deliveryMap) return [];
+    const out: { x: number; y: number }[] = [];
+    for (const { current: r } of readings) if (r.pH !== null) out.push({ x: Math.max(0, deliveryMap.volumeAt(r.timeS)), y: r.pH });
+    return out;
+  }, [readings, deliveryMap]);
+  const predicted = useMemo(() => (plan?.ok && plan.plan.curve ? plan.plan.curve.map((p) => ({ x: p.volumeMl, y: p.pH })) : undefined), [plan]);
   return (
-    <Screen title={run.record!.run.label} subtitle={status === 'ready' ? 'Fill the burette, read the start, start the drip and the clock together.' : undefined} actions={header} testID="screen-run">
-      {errorBar}
-      {wide ? (
-        <View style={styles.columns}>
-          <View style={styles.left}>
-            {controls}
-            {tapArea}
-          </View>
-          <View style={styles.right}>
-            {estimates}
-            {status === 'ready' ? before : chart}
-            {status !== 'ready' ? table : null}
-          </View>
-        </View>
-      ) : (
-        <>
-          {controls}
-          {tapArea}
-          {estimates}
-          {status === 'ready' ? before : chart}
-          {status !== 'ready' ? table : null}
-        </>
-      )}
-    </Screen>
+    <Card title="Curve" testID="live-chart-card">
+      <CurveChart readings={points} predicted={predicted} result={result} height={height} testID="live-chart" />
+    </Card>
   );
-}
+});
 
 function Estimate({ label, value, testID }: { label: string; value: string; testID?: string }) {
   return (
@@ -255,19 +335,19 @@ function Estimate({ label, value, testID }: { label: string; value: string; test
   );
 }
 
-function RefillPanel({ onResume }: { onResume(refill?: { beforeMl: number; afterMl: number }): void }) {
+function RefillPanel({ onResume }: { onResume: RunActions['clockAction'] }) {
   const [before, setBefore] = useState('');
   const [after, setAfter] = useState('');
   const [err, setErr] = useState<string | null>(null);
   const resume = () => {
     const b = numberOrUndefined(before);
     const a = numberOrUndefined(after);
-    if (b === undefined && a === undefined) return onResume();
+    if (b === undefined && a === undefined) return void onResume('resume');
     if (b === undefined || a === undefined || Number.isNaN(b) || Number.isNaN(a) || b < 0 || a < 0 || b > 100 || a > 100) {
       setErr('Give both burette readings (0–100 mL), or leave both empty.');
       return;
     }
-    onResume({ beforeMl: b, afterMl: a });
+    void onResume('resume', { refill: { beforeMl: b, afterMl: a } });
   };
   return (
     <Card tone="warn" title="Paused for a refill" testID="refill-panel">
