@@ -80,7 +80,8 @@ try {
 } catch (err) {
   console.warn(`Start-up chunk left as exported (it could not be split: ${err instanceof Error ? err.message : err}).`);
 }
-chunks.dropSourceMaps(dist);
+// HALFMARK_KEEP_SOURCE_MAPS=1 keeps them for profiling a local build (the split chunks' maps are then stale).
+if (!process.env.HALFMARK_KEEP_SOURCE_MAPS) chunks.dropSourceMaps(dist);
 // Manifest and service worker (offline opening, install to the home screen).
 await (await import('./web-offline.mjs')).addOfflineSupport(root, dist);
 

@@ -11,7 +11,7 @@
  * (its automation-only bulk path), and that time is printed too.
  */
 import { spawn, spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync } from 'node:fs';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { chromium, type BrowserContext } from 'playwright-core';
@@ -151,6 +151,14 @@ async function main() {
       await page.getByTestId(testId).click();
       return (await page.evaluate(() => (window as any).__result)) as [number, number];
     };
+    // TAP_BENCH_CPUPROFILE=file.cpuprofile records the page's CPU profile over the measured taps (open it in
+    // Chromium's DevTools; dist/ has source maps) to see where a tap's time goes.
+    const profileOut = process.env.TAP_BENCH_CPUPROFILE;
+    if (profileOut) {
+      await cdp.send('Profiler.enable');
+      await cdp.send('Profiler.setSamplingInterval', { interval: 200 });
+      await cdp.send('Profiler.start');
+    }
     for (let i = 0; i < SAMPLES; i++) {
       const [ms, mc] = await measure('mark', 0, 'tap-reading');
       mark.shown.push(ms);
@@ -161,6 +169,7 @@ async function main() {
       reading.saved.push(rc);
       await page.waitForTimeout(150);
     }
+    if (profileOut) writeFileSync(profileOut, JSON.stringify((await cdp.send('Profiler.stop')).profile));
     await cdp.send('Emulation.setCPUThrottlingRate', { rate: 1 });
     if (errors.length) throw new Error(`page errors: ${errors.join('; ')}`);
     const summary = (xs: number[]) => `median ${median(xs).toFixed(1)}, p95 ${p95(xs).toFixed(1)}, max ${Math.max(...xs).toFixed(1)}`;
