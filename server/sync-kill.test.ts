@@ -84,17 +84,19 @@ describe('server killed during a large push', () => {
     const run = device.createRun(s1.labId, 'kill test run (demo)');
     for (let i = 0; i < N; i++) device.addReading(run.id, i, 3 + (i % 800) / 100);
 
-    // Count what the server acknowledged (answers that reached the device), and pull the plug after a few.
+    // Count what the server acknowledged (answers that reached the device), and pull the plug while the fifth
+    // request is in flight (sent, its answer not yet back).
     const acknowledged = new Set<string>();
-    let answers = 0;
+    let sent = 0;
     let base = base1;
     let token = s1.token;
     const inner = () => httpTransport({ baseUrl: base, accessToken: async () => token });
     const t: SyncTransport = {
       async push(req) {
-        const res = await inner().push(req);
+        const answer = inner().push(req);
+        if (++sent === 5) setTimeout(() => first.child.kill('SIGKILL'), 5);
+        const res = await answer;
         for (const r of res.results) if (r.outcome === 'accepted' || r.outcome === 'duplicate') acknowledged.add(r.id);
-        if (++answers === 4) first.child.kill('SIGKILL');
         return res;
       },
       pull: (c, l) => inner().pull(c, l),

@@ -54,10 +54,15 @@ describe('sync in the browser', () => {
       const { page, context } = first;
       await signIn(page);
 
-      // Hold the first push: it reaches the server (which commits), but its answer never reaches the page.
+      // Hold the first push that carries readings: it reaches the server (which commits), but its answer never
+      // reaches the page. Pushes before it (the run itself, its start) go through as usual.
       let committed: (() => void) | null = null;
+      let held = false;
       const pushed = new Promise<void>((r) => (committed = r));
       await context.route('**/api/sync/push', async (route: Route) => {
+        const changes = (JSON.parse(route.request().postData() ?? '{}').changes ?? []) as { kind: string }[];
+        if (held || !changes.some((c) => c.kind === 'reading')) return route.continue();
+        held = true;
         await route.fetch();
         committed!();
         // No fulfil: the page is closed while waiting for this answer.
@@ -76,7 +81,9 @@ describe('sync in the browser', () => {
       await Promise.race([pushed, new Promise((_, rej) => setTimeout(() => rej(new Error('no push within 60 s')), 60_000))]);
       await first.close();
 
+      // The replay case: readings the server committed whose acknowledgement the page never saw.
       const committedIds = await serverReadings(runId);
+      expect(committedIds.length, 'the held push committed readings').toBeGreaterThan(0);
       // Reopen the same profile: the outbox is still there; the next sync replays and completes.
       const second = await openApp('/bench', { profileDir, ...allow });
       await second.page.getByTestId('sync-state').waitFor();
