@@ -54,6 +54,9 @@ export function createApp(deps: AppDeps): Express {
 
   const context = createServerContext({ ...deps, log });
   app.locals.context = context;
+  // A CSV import may be up to 5 MB of text (shared/schemas/desk.ts), sent as JSON; every other body stays under 2 MB.
+  // The first parser to read a body marks it parsed, so the general one then passes it by.
+  app.use('/api/labs/:labId/imports', express.json({ limit: '6mb' }));
   app.use('/api', express.json({ limit: '2mb' }), apiRouter({ ...deps, log }, context), unknownApiRoute);
 
   if (deps.webDir && existsSync(deps.webDir)) {

@@ -358,6 +358,26 @@ describe('import', () => {
     expect(mine.map((c: { entity: string }) => c.entity)).toEqual(['run', 'checkpoint', ...Array(30).fill('reading')]);
   });
 
+  it('takes a file up to the 5 MB the import allows, and refuses a larger one with that reason', async () => {
+    // A wide meter log of about 3 MB within the 20,000-row limit: more than the 2 MB other request bodies may carry.
+    const remark = 'logged by the meter; electrode E-2 calibrated this morning; stirrer at setting 3; '.repeat(2);
+    const line = (i: number) => `${i},${(3 + (i % 900) / 100).toFixed(2)},${200 - (i % 400)},22.4,${remark}\n`;
+    const rows = 18_000;
+    const big = 'time_s,pH,mV,temperature_C,remark\n' + Array.from({ length: rows }, (_, i) => line(i)).join('');
+    expect(big.length).toBeGreaterThan(2.5e6);
+    const p = await fx.api().post(`/api/labs/${fx.labA.id}/imports/preview`).set('authorization', as('analyst')).send({ csv: big });
+    expect(p.status, JSON.stringify(p.body).slice(0, 300)).toBe(200);
+    expect(p.body.rowCount).toBe(rows);
+    const tooBig = (big + big).slice(0, 5_200_000);
+    expect(tooBig.length).toBeGreaterThan(5e6);
+    const r = await fx.api().post(`/api/labs/${fx.labA.id}/imports/preview`).set('authorization', as('analyst')).send({ csv: tooBig });
+    expect(r.status).toBe(400);
+    expect(JSON.stringify(r.body)).toContain('larger than 5 MB');
+    // Other routes keep the 2 MB limit.
+    const notes = await fx.api().post('/api/sync/push').set('authorization', as('analyst')).send({ junk: 'x'.repeat(2.2e6) });
+    expect(notes.status).toBe(413);
+  });
+
   it('maps a volume column through the drip rate and reads m:ss times', async () => {
     const csv = 'Volume (mL);pH\n0,0;3,10\n1,5;3,60\n3,0;4,00';
     const p = await fx.api().post(`/api/labs/${fx.labA.id}/imports/preview`).set('authorization', as('analyst')).send({ csv, mapping: { volume: 'Volume (mL)', pH: 'pH' }, rateMlPerS: 0.05 });
