@@ -176,8 +176,19 @@ describe('calibrations API', () => {
     expect(s2.status).toBe(201);
     let lotOut = (await overview()).lots.find((x) => x.id === lotId)!;
     expect(lotOut.current!.n).toBe(2);
-    const c2 = s2.body.concentrationM;
-    expect(lotOut.current!.concentrationM).toBeCloseTo((0.10214 + c2) / 2, 4);
+    // The two replicates' own concentrations, as the API lists them.
+    const reps = lotOut.standardisations.filter((x) => lotOut.current!.standardisationIds.includes(x.id));
+    expect(reps).toHaveLength(2);
+    expect(reps.map((x) => x.id)).toContain(s2.body.id);
+    expect(reps.find((x) => x.id === s2.body.id)!.concentrationM).toBe(s2.body.concentrationM);
+    const [c1, c2] = reps.map((x) => x.concentrationM);
+    // A different mass and volume: a different concentration, so the mean is distinguishable from either replicate.
+    expect(Math.abs(c1 - c2) / c1).toBeGreaterThan(1e-4);
+    // GUM (JCGM 100:2008) 4.2.1 (clause from memory): the arithmetic mean of the replicates, to ~10 significant digits.
+    const expected = (c1 + c2) / 2;
+    const got = lotOut.current!.concentrationM;
+    expect(Math.abs(got - expected) / expected).toBeLessThan(1e-10);
+    for (const c of [c1, c2]) expect(Math.abs(got - c) / c).toBeGreaterThan(1e-5);
     const w = await as('manager').patch(`/labs/${fx.labA.id}/standardisations/${s2.body.id}`, { withdraw: { reason: 'KHP not dried' } });
     expect(w.status, JSON.stringify(w.body)).toBe(200);
     lotOut = (await overview()).lots.find((x) => x.id === lotId)!;

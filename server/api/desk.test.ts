@@ -12,6 +12,7 @@ import { S3Store } from '../storage/s3';
 import { LocalDiskStore, useStorage } from '../storage';
 import { closeTemplate } from '../testing/db';
 import { eventually, sleep } from '../testing/eventually';
+import { pdfPageText } from '../testing/pdf-text';
 import { mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
@@ -309,7 +310,17 @@ describe('exports', () => {
     expect(res.headers['content-type']).toBe('application/pdf');
     const body = res.body as Buffer;
     expect(body.subarray(0, 5).toString()).toBe('%PDF-');
-    expect(body.length).toBeGreaterThan(3000);
+    // What the page shows: the run's sample name and its Ve, as the run's detail gives them.
+    const detail = await fx.api().get(`/api/runs/${runIdsA[0]}`).set('authorization', as('viewer'));
+    expect(detail.status).toBe(200);
+    const sampleName: string = detail.body.run.sampleName;
+    const ve: number = detail.body.analysis.equivalencePoints[0].volumeMl;
+    const text = pdfPageText(body);
+    expect(text).toContain(`Run report: ${sampleName}`);
+    const shown = /^Equivalence volume \(step 1\): (\d+(?:\.\d+)?) ± \S+ mL/m.exec(text);
+    expect(shown, text.slice(0, 2000)).not.toBeNull();
+    // The report gives 5 significant digits: within half a unit of the fifth digit of the result's Ve.
+    expect(Math.abs(Number(shown![1]) - ve)).toBeLessThanOrEqual(0.5 * 10 ** (Math.floor(Math.log10(ve)) - 4) * (1 + 1e-9));
   });
 });
 

@@ -38,35 +38,45 @@ async function pushRun(readings: number) {
   return { deviceId, runId, seq: changes.length, ids: changes.slice(1).map((c) => c.id) };
 }
 
-/** Reads server-sent events from a fetch body until `until` is satisfied. */
-async function readEvents(res: Response, until: (events: { event: string; data: any }[]) => boolean, ms: number) {
+type SseEvent = { event: string; data: any };
+
+/**
+ * Reads server-sent events from a fetch body. `until` waits (up to `ms`) for the events so far to satisfy a
+ * condition and can be called again on the same open stream; `close` ends it.
+ */
+function eventStream(res: Response) {
   const reader = res.body!.getReader();
   const dec = new TextDecoder();
-  const events: { event: string; data: any }[] = [];
+  const events: SseEvent[] = [];
   let buf = '';
   let pending: Promise<ReadableStreamReadResult<Uint8Array>> | null = null;
-  const deadline = Date.now() + ms;
-  while (!until(events)) {
-    if (Date.now() > deadline) throw new Error(`no matching event in ${ms} ms; got ${JSON.stringify(events.map((e) => e.event))}`);
-    // One read in flight at a time; a timeout only re-checks the deadline and keeps waiting on the same read.
-    pending ??= reader.read();
-    const got = await Promise.race([pending, new Promise<null>((r) => setTimeout(() => r(null), 200))]);
-    if (!got) continue;
-    pending = null;
-    const { value, done } = got;
-    if (done) throw new Error('stream ended');
-    if (value) buf += dec.decode(value, { stream: true });
-    let i;
-    while ((i = buf.indexOf('\n\n')) >= 0) {
-      const block = buf.slice(0, i);
-      buf = buf.slice(i + 2);
-      const ev = /^event: (.*)$/m.exec(block)?.[1];
-      const data = /^data: (.*)$/m.exec(block)?.[1];
-      if (ev && data) events.push({ event: ev, data: JSON.parse(data) });
-    }
-  }
-  await reader.cancel();
-  return events;
+  return {
+    events,
+    async until(cond: (events: SseEvent[]) => boolean, ms: number): Promise<SseEvent[]> {
+      const deadline = Date.now() + ms;
+      while (!cond(events)) {
+        if (Date.now() > deadline) throw new Error(`no matching event in ${ms} ms; got ${JSON.stringify(events.map((e) => e.event))}`);
+        // One read in flight at a time; a timeout only re-checks the deadline and keeps waiting on the same read.
+        pending ??= reader.read();
+        const got = await Promise.race([pending, new Promise<null>((r) => setTimeout(() => r(null), 200))]);
+        if (!got) continue;
+        pending = null;
+        const { value, done } = got;
+        if (done) throw new Error('stream ended');
+        if (value) buf += dec.decode(value, { stream: true });
+        let i;
+        while ((i = buf.indexOf('\n\n')) >= 0) {
+          const block = buf.slice(0, i);
+          buf = buf.slice(i + 2);
+          const ev = /^event: (.*)$/m.exec(block)?.[1];
+          const data = /^data: (.*)$/m.exec(block)?.[1];
+          if (ev && data) events.push({ event: ev, data: JSON.parse(data) });
+        }
+      }
+      return events;
+    },
+    close: () => reader.cancel(),
+  };
 }
 
 describe('sync over HTTP', () => {
@@ -84,25 +94,40 @@ describe('sync over HTTP', () => {
   });
 
   it('live follow: a colleague (viewer) sees readings pushed after they opened the stream', async () => {
-    const { runId, deviceId, seq } = await pushRun(3);
+    const { runId, deviceId, seq, ids: before } = await pushRun(3);
     const res = await fetch(`${base}/api/runs/${runId}/live`, { headers: { ...(await auth('viewer')), accept: 'text/event-stream' } });
     expect(res.status).toBe(200);
     expect(res.headers.get('content-type')).toMatch(/text\/event-stream/);
-    const later = [v7(), v7()];
-    const reading = setTimeout(async () => {
+    const stream = eventStream(res);
+    const seen = (evs: SseEvent[]) => new Set(evs.filter((e) => e.event === 'changes').flatMap((e) => e.data.changes.map((c: any) => c.record.id)));
+    try {
+      // The stream is ready (the server listens for the run's changes) and its first page brought the run and its
+      // three readings: only now is the next reading pushed, so it can come only by notification.
+      await stream.until((evs) => evs.some((e) => e.event === 'ready') && before.every((id) => seen(evs).has(id)), 20_000);
+      expect(stream.events[0].event).toBe('ready');
+      const eventsBeforePush = stream.events.length;
+      const later = [v7(), v7()];
       const r = await fx
         .api()
         .post('/api/sync/push')
         .set(await auth('analyst'))
         .send({ deviceId, sentAt: Date.now(), changes: later.map((id, i) => ({ id, kind: 'reading', seq: seq + i + 1, recordedAt: Date.now(), payload: { runId, timeS: 100 + i, pH: 7 } })) });
       expect(r.status).toBe(200);
-    }, 300);
-    const seen = (evs: { event: string; data: any }[]) => new Set(evs.filter((e) => e.event === 'changes').flatMap((e) => e.data.changes.map((c: any) => c.record.id)));
-    const events = await readEvents(res, (evs) => later.every((id) => seen(evs).has(id)), 20_000);
-    clearTimeout(reading);
-    expect(events[0].event).toBe('ready');
-    // The first page brought the three readings already there; the later two came by notification.
-    expect(seen(events).size).toBeGreaterThanOrEqual(6);
+      expect(r.body.results.map((x: { outcome: string }) => x.outcome)).toEqual(['accepted', 'accepted']);
+      await stream.until((evs) => later.every((id) => seen(evs.slice(eventsBeforePush)).has(id)), 20_000);
+      // The pushed readings arrived on the stream after the push, as readings of this run with the values pushed.
+      const arrived = stream.events
+        .slice(eventsBeforePush)
+        .filter((e) => e.event === 'changes')
+        .flatMap((e) => e.data.changes)
+        .filter((c: any) => later.includes(c.record.id));
+      expect(arrived.map((c: any) => [c.entity, c.record.runId, c.record.timeS, c.record.pH])).toEqual([
+        ['reading', runId, 100, 7],
+        ['reading', runId, 101, 7],
+      ]);
+    } finally {
+      await stream.close();
+    }
     // Closing the stream ends the follow (the LISTEN is dropped with the last follower).
     await waitFor(() => liveHub(fx.database).followers === 0, 5000);
   });

@@ -26,9 +26,14 @@ export function isCommonPassword(password: string): boolean {
  */
 export function assertAcceptablePassword(password: string, email?: string): void {
   const lower = password.trim().toLowerCase();
-  if (isCommonPassword(password) || (email && (lower === email.toLowerCase() || lower === email.split('@')[0].toLowerCase()))) {
-    throw new HttpError(400, 'weak_password', 'That password is one of the most commonly used ones. Choose another.', [
-      { path: 'password', message: 'That password is too common. Choose another.', code: 'weak_password' },
-    ]);
+  if (isCommonPassword(password)) {
+    throw weak('That password is one of the most commonly used ones. Choose another.', 'That password is too common. Choose another.');
+  }
+  if (email && (lower === email.toLowerCase() || lower === email.split('@')[0].toLowerCase())) {
+    // Told apart from the common-password case: "too common" would puzzle someone who typed their own address.
+    throw weak('That password is your e-mail address. Choose another.', 'Your e-mail address cannot be your password.');
   }
 }
+
+const weak = (message: string, fieldMessage: string) =>
+  new HttpError(400, 'weak_password', message, [{ path: 'password', message: fieldMessage, code: 'weak_password' }]);

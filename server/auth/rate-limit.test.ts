@@ -94,6 +94,13 @@ describe('sign-in rate limiting (through the API)', () => {
     }
     const res = await fx.api().post('/api/auth/password/forgot').set('x-forwarded-for', '10.3.1.1').send({ email });
     expect(res.status).toBe(429);
-    expect(res.headers['retry-after']).toBeDefined();
+    // Retry-After in delay-seconds (RFC 9110 §10.2.3): a whole number, > 0, never beyond the policy's window.
+    const retryAfter = res.headers['retry-after'];
+    expect(retryAfter).toMatch(/^\d+$/);
+    expect(Number(retryAfter)).toBeGreaterThan(0);
+    expect(Number(retryAfter)).toBeLessThanOrEqual(POLICIES.resetAccount.windowSeconds);
+    // The first lock after the free requests is the policy's base (lockSeconds above), as the body says too.
+    expect(Number(retryAfter)).toBe(POLICIES.resetAccount.baseSeconds);
+    expect(res.body.error).toMatchObject({ code: 'too_many_attempts', details: { retryAfterSeconds: Number(retryAfter) } });
   });
 });

@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { randomUUID } from 'node:crypto';
+import { eq } from 'drizzle-orm';
 import { runs } from '../../db/schema';
 import { apiRouter, apiRoutes } from '../api';
 import { calibrationMatrix } from '../api/calibrations.matrix';
@@ -30,6 +31,8 @@ interface Expectation {
   /** Routes of no lab (public, signed-in) have one row, run against both targets' requests alike. */
   own: Row;
   other?: Row;
+  /** What the answer must say beyond its status, for routes whose status alone does not show the caller's rights. */
+  check?: (res: { status: number; body: unknown }, cell: { caller: Caller; target: Target; req: Req }) => Promise<void> | void;
 }
 
 const uniq = () => Math.random().toString(36).slice(2, 10);
@@ -123,11 +126,28 @@ const matrix: Record<string, Expectation> = {
   },
   ...calibrationMatrix,
   ...deskMatrix,
-  // Sync: push is open to any signed-in user; each change is checked against the caller's lab role inside the batch
-  // (a viewer's run comes back 200 with that change "rejected", see server/services/sync.test.ts).
+  // Sync: push is open to any signed-in user; each change is checked against the caller's lab role inside the batch,
+  // so the 200 says nothing about rights: the change's own outcome does (a viewer's run "rejected" 403 with the
+  // permission reason and not stored; an analyst's or manager's "accepted" 201 and stored).
   'POST /sync/push': {
     request: (_fx, lab) => ({ body: { deviceId: randomUUID(), sentAt: Date.now(), changes: [{ id: randomUUID(), kind: 'run', seq: 1, recordedAt: Date.now(), payload: { labId: lab.id, sampleName: 'matrix run' } }] } }),
     own: { signedOut: 401, analyst: 200, manager: 200, viewer: 200 },
+    check: async (res, { caller, req }) => {
+      if (caller === 'signedOut') return;
+      const changeId = (req.body as { changes: { id: string }[] }).changes[0].id;
+      const results = (res.body as { results: { id: string; outcome: string; status: number; reason?: string }[] }).results;
+      expect(results).toHaveLength(1);
+      expect(results[0].id).toBe(changeId);
+      const stored = await fx.database.db.select({ id: runs.id, analystId: runs.analystId }).from(runs).where(eq(runs.id, changeId));
+      if (caller === 'viewer') {
+        expect(results[0]).toMatchObject({ outcome: 'rejected', status: 403, reason: 'A viewer cannot record runs.' });
+        expect(stored).toEqual([]);
+      } else {
+        expect(results[0]).toMatchObject({ outcome: 'accepted', status: 201 });
+        expect(results[0].reason).toBeUndefined();
+        expect(stored).toEqual([{ id: changeId, analystId: fx.people[caller].id }]);
+      }
+    },
   },
   'GET /sync/pull': { request: () => ({}), own: { signedOut: 401, analyst: 200, manager: 200, viewer: 200 } },
   'GET /runs/:runId/live': {
@@ -208,9 +228,11 @@ describe('route matrix (generated from apiRoutes)', () => {
         for (const caller of CALLERS) {
           it(`${caller} · ${target} lab → ${row[caller]}`, async () => {
             const lab = target === 'own' ? fx.labA : fx.labB;
-            const res = await call(def, caller, await exp.request(fx, { id: lab.id, target }));
+            const req = await exp.request(fx, { id: lab.id, target });
+            const res = await call(def, caller, req);
             expect(res.status, JSON.stringify(res.body)).toBe(row[caller]);
             if (res.status >= 400) expect(res.body.error?.code).toEqual(expect.any(String));
+            await exp.check?.(res, { caller, target, req });
           });
         }
       }

@@ -81,7 +81,10 @@ describe('invitation by e-mail', () => {
 
   it('an invitation expires after 7 days', async () => {
     const inv = await fx.invitation(fx.labA.id, 'late@example.org');
-    fx.advance(7 * 86_400_000 + 1000);
+    // Control: the same request finds it a second before the 7 days are up.
+    fx.advance(7 * 86_400_000 - 1000);
+    await fx.api().get(`/api/auth/invitations/${inv.token}`).expect(200);
+    fx.advance(2000);
     await fx.api().get(`/api/auth/invitations/${inv.token}`).expect(404);
   });
 
@@ -100,13 +103,24 @@ describe('password reset by e-mail', () => {
   it('sends a single-use link; the new password works, the old one and old sessions do not', async () => {
     const person = await fx.person(fx.labA.id, 'analyst');
     const old = await fx.session(person.id);
-    await fx.api().post('/api/auth/password/forgot').send({ email: person.email.toUpperCase() }).expect(202);
-    // Unknown addresses get the same answer and no mail.
-    await fx.api().post('/api/auth/password/forgot').send({ email: 'no.such.person@example.org' }).expect(202);
-    expect(await mailbox('no.such.person@example.org')).toEqual([]);
+    // Controls for what must stop working after the reset: the old password and an old session work now. (A second
+    // session is refreshed here, because a refresh rotates the cookie it uses.)
+    await fx.api().post('/api/auth/login').send({ email: person.email, password: TEST_PASSWORD }).expect(200);
+    await fx.api().get('/api/auth/me').set('authorization', `Bearer ${old.accessToken}`).expect(200);
+    await fx.api().post('/api/auth/refresh').set('cookie', (await fx.session(person.id)).refreshCookie).expect(200);
 
-    const [msg] = await mailbox(person.email);
-    const token = linkIn(msg.text, 'reset');
+    await fx.api().post('/api/auth/password/forgot').send({ email: person.email.toUpperCase() }).expect(202);
+    // Unknown addresses get the same answer and no mail (nothing queued either); the same queries find the known
+    // person's message and its outbox row.
+    await fx.api().post('/api/auth/password/forgot').send({ email: 'no.such.person@example.org' }).expect(202);
+    const queued = (to: string) => fx.database.query<{ n: number }>('select count(*)::int as n from outbox where to_address = $1', [to]);
+    expect((await queued('no.such.person@example.org'))[0].n).toBe(0);
+    expect((await queued(person.email))[0].n).toBe(1);
+    expect(await mailbox('no.such.person@example.org')).toEqual([]);
+    const sent = await mailbox(person.email);
+    expect(sent).toHaveLength(1);
+
+    const token = linkIn(sent[0].text, 'reset');
     const res = await fx.api().post('/api/auth/password/reset').send({ token, password: 'a brand new passphrase' }).expect(200);
     expect(res.body.user.email).toBe(person.email);
 
@@ -118,11 +132,18 @@ describe('password reset by e-mail', () => {
   });
 
   it('a reset link expires after 30 minutes', async () => {
-    const person = await fx.person(fx.labA.id, 'analyst');
-    const token = await fx.resetToken(person.id);
-    fx.advance(30 * 60_000 + 1000);
-    const res = await fx.api().post('/api/auth/password/reset').send({ token, password: 'a brand new passphrase' }).expect(400);
+    // Two people's links made at the same moment: one used a second before the 30 minutes (control: accepted), the
+    // other a second after. Two people, so the second link cannot be refused for the first one's reset.
+    const early = await fx.person(fx.labA.id, 'analyst');
+    const late = await fx.person(fx.labA.id, 'analyst');
+    const earlyToken = await fx.resetToken(early.id);
+    const lateToken = await fx.resetToken(late.id);
+    fx.advance(30 * 60_000 - 1000);
+    await fx.api().post('/api/auth/password/reset').send({ token: earlyToken, password: 'a brand new passphrase' }).expect(200);
+    fx.advance(2000);
+    const res = await fx.api().post('/api/auth/password/reset').send({ token: lateToken, password: 'a brand new passphrase' }).expect(400);
     expect(res.body.error.code).toBe('invalid_link');
+    await fx.api().post('/api/auth/login').send({ email: late.email, password: TEST_PASSWORD }).expect(200);
   });
 });
 
@@ -130,7 +151,11 @@ describe('members: roles and disabling', () => {
   it('disabling a member ends their access on the very next request and is audited', async () => {
     const target = await fx.person(fx.labA.id, 'analyst');
     const theirs = await fx.session(target.id);
+    // Controls: each request refused below succeeds before the disabling (a second session is refreshed, because a
+    // refresh rotates the cookie it uses).
     await fx.api().get('/api/auth/me').set('authorization', `Bearer ${theirs.accessToken}`).expect(200);
+    await fx.api().post('/api/auth/refresh').set('cookie', (await fx.session(target.id)).refreshCookie).expect(200);
+    await fx.api().post('/api/auth/login').send({ email: target.email, password: TEST_PASSWORD }).expect(200);
     const auth = await bearer(fx.people.manager.id);
     const res = await fx.api().post(`/api/labs/${fx.labA.id}/members/${target.id}/disable`).set('authorization', auth).expect(200);
     expect(res.body.disabled).toBe(true);
@@ -166,8 +191,18 @@ describe('members: roles and disabling', () => {
 
   it('bad input is refused with the error shape and changes nothing', async () => {
     const auth = await bearer(fx.people.manager.id);
+    const invited = async () =>
+      (await fx.api().get(`/api/labs/${fx.labA.id}/invitations`).set('authorization', auth).expect(200)).body.map((i: { email: string }) => i.email);
+    const queued = async () => (await fx.database.query<{ n: number }>('select count(*)::int as n from outbox'))[0].n;
+    const [before, queuedBefore] = [await invited(), await queued()];
     const res = await fx.api().post(`/api/labs/${fx.labA.id}/invitations`).set('authorization', auth).send({ email: 'not-an-address', role: 'boss' }).expect(400);
     expect(res.body.error.code).toBe('invalid_input');
     expect(res.body.error.details.map((d: { path: string }) => d.path).sort()).toEqual(['email', 'role']);
+    expect(await invited()).toEqual(before);
+    expect(await queued()).toBe(queuedBefore);
+    // Control: the same queries see a good invitation and its message.
+    await fx.api().post(`/api/labs/${fx.labA.id}/invitations`).set('authorization', auth).send({ email: 'good.address@example.org', role: 'viewer' }).expect(201);
+    expect(await invited()).toEqual(expect.arrayContaining([...before, 'good.address@example.org']));
+    expect(await queued()).toBe(queuedBefore + 1);
   });
 });

@@ -179,7 +179,9 @@ describe('replays of one batch', () => {
     expect(readingIds.sort()).toEqual([...ids, ...fresh.map((c) => c.id)].sort());
   });
 
-  it(`concurrently (${process.env.TEST_DATABASE_URL ? 'PostgreSQL server' : 'PGlite'}): exactly one row per id, each accepted once`, async () => {
+  // The six pushes are started together. On PGlite (one connection) their transactions take turns; on a PostgreSQL
+  // server (TEST_DATABASE_URL, a pool of 5) they overlap, and the database's uniqueness must settle who wins.
+  it('six pushes of the same 50-reading batch started at once: exactly one row per id, each id accepted by one push only', async () => {
     const { analyst, batch, ids, runId } = await batchOf(50);
     const all = await Promise.all(Array.from({ length: 6 }, () => push(w.deps, analyst, batch)));
     const acceptedPerId = new Map<string, number>();

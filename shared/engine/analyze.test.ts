@@ -22,24 +22,37 @@ const cases: { name: string; spec: SyntheticSpec; breaks: number[] }[] = [
   { name: 'citric acid 0.03 M (one break for three protons)', spec: { pKa: [3.128, 4.761, 6.396], concentrationM: 0.03 }, breaks: [3] },
 ];
 
-describe('analyzeRun recovers the inputs of curves simulated from handbook constants (seeded noise 0.005 pH, uneven taps)', () => {
+// Tolerances: what the engine achieves on these curves, with a margin. The curves are simulated with Davies activities
+// and the engine fits the same model, so what is left is the seeded noise (σ 0.005 pH), not a bias. Over 40 other
+// seeds (100–139) of every case the largest errors were: Ve 0.047 % (= molar mass), thermodynamic pKa 0.0042
+// (phosphoric pKa3); the engine's own u(pKa) is 0.0004–0.0019. The margins (Ve ×2, pKa ×1.4) leave room for the
+// scatter of noise that three fixed seeds happen not to show, and nothing more: a bias of 0.15 % in Ve or 0.01 in pKa
+// (a seventh of the Davies shift of 0.1 M acetic acid, 0.074 here) fails every case.
+const VE_REL_TOL = 0.001;
+const PKA_TOL = 0.006;
+const MOLAR_MASS_REL_TOL = 0.001;
+
+describe('analyzeRun recovers the inputs of curves simulated from handbook constants (Davies activities, seeded noise 0.005 pH, uneven taps)', () => {
   for (const c of cases) {
     for (const seed of [11, 12, 13]) {
-      it(`${c.name}, seed ${seed}: Ve within 0.3 %, pKa within 0.03 (fit, thermodynamic), molar mass within 0.5 %`, () => {
-        const { doc, trueVeMl } = syntheticRun({ ...c.spec, seed });
+      it(`${c.name}, seed ${seed}: Ve within 0.1 %, thermodynamic pKa within 0.006 (fit), molar mass within 0.1 %`, () => {
+        const { doc, trueVeMl } = syntheticRun({ ...c.spec, seed, activity: 'davies' });
         const r = run(doc);
         expect(r.equivalencePoints.map((e) => e.step)).toEqual(c.breaks);
         // the answer is itself valid against the published result schema (finite numbers throughout)
         expect(analysisResultSchema.safeParse(r).success).toBe(true);
         for (const e of r.equivalencePoints) {
-          expect(Math.abs(e.volumeMl / trueVeMl[e.step - 1] - 1)).toBeLessThan(0.003);
+          expect(Math.abs(e.volumeMl / trueVeMl[e.step - 1] - 1)).toBeLessThan(VE_REL_TOL);
           expect(e.uMl).toBeGreaterThan(0);
         }
+        expect(r.fit!.activity).toBe('davies');
         expect(r.pKaThermodynamic).toHaveLength(c.spec.pKa.length);
-        r.pKaThermodynamic.forEach((p, k) => expect(Math.abs(p - c.spec.pKa[k])).toBeLessThan(0.03));
+        // against the handbook constants of the case (25 °C, I → 0; sources in the comment above `cases`)
+        r.pKaThermodynamic.forEach((p, k) => expect(Math.abs(p - c.spec.pKa[k])).toBeLessThan(PKA_TOL));
         if (c.spec.molarMassGPerMol) {
+          // CIAAW atomic weights (check-values.md, computed)
           expect(r.molarMassGPerMol).not.toBeNull();
-          expect(Math.abs(r.molarMassGPerMol! / c.spec.molarMassGPerMol - 1)).toBeLessThan(0.005);
+          expect(Math.abs(r.molarMassGPerMol! / c.spec.molarMassGPerMol - 1)).toBeLessThan(MOLAR_MASS_REL_TOL);
         }
       });
     }
@@ -48,7 +61,8 @@ describe('analyzeRun recovers the inputs of curves simulated from handbook const
   it('without activity correction the fitted apparent pKa equals the simulated constant (acetic 4.756)', () => {
     const { doc } = syntheticRun({ pKa: [4.756], concentrationM: 0.1, activity: 'none', seed: 5 });
     const r = run(doc);
-    expect(Math.abs(r.pKa[0] - 4.756)).toBeLessThan(0.03);
+    // acetic 4.756 (CRC-style table); seed 5 and 40 others gave at most 0.0015 off: same noise, same tolerance
+    expect(Math.abs(r.pKa[0] - 4.756)).toBeLessThan(PKA_TOL);
     expect(r.fit!.activity).toBe('none');
     // the thermodynamic value lies above the apparent one by the Davies shift at the run's ionic strength
     expect(r.pKaThermodynamic[0]).toBeGreaterThan(r.pKa[0] + 0.03);
@@ -90,22 +104,26 @@ describe('analyzeRun recovers the inputs of curves simulated from handbook const
 
 describe('optional model terms', () => {
   it('fits an electrode offset when asked (simulated offset +0.06 pH on acetic acid, pKa 4.756)', () => {
-    const { doc, trueVeMl } = syntheticRun({ pKa: [4.756], concentrationM: 0.1, seed: 14, electrodeOffset: 0.06 });
+    const { doc, trueVeMl } = syntheticRun({ pKa: [4.756], concentrationM: 0.1, seed: 14, electrodeOffset: 0.06, activity: 'davies' });
     const r = run({ ...doc, fitElectrodeOffset: true });
-    expect(r.fit!.electrodeOffset!).toBeCloseTo(0.06, 1);
-    expect(Math.abs(r.fit!.electrodeOffset! - 0.06)).toBeLessThan(0.02);
-    expect(Math.abs(r.pKaThermodynamic[0] - 4.756)).toBeLessThan(0.03);
-    expect(Math.abs(r.equivalencePoints[0].volumeMl / trueVeMl[0] - 1)).toBeLessThan(0.003);
+    // Over seeds 200–219 the offset came back within 0.0015 pH, pKa within 0.0018, Ve within 0.01 %: the shared
+    // tolerances above hold with room, and the offset gets ×2 (0.003 pH) for the same reason.
+    expect(Math.abs(r.fit!.electrodeOffset! - 0.06)).toBeLessThan(0.003);
+    // acetic 4.756 (CRC-style table)
+    expect(Math.abs(r.pKaThermodynamic[0] - 4.756)).toBeLessThan(PKA_TOL);
+    expect(Math.abs(r.equivalencePoints[0].volumeMl / trueVeMl[0] - 1)).toBeLessThan(VE_REL_TOL);
     // without the offset term the same data give a pKa off by about the offset
     const plain = run(doc);
     expect(Math.abs(plain.pKaThermodynamic[0] - 4.756)).toBeGreaterThan(0.03);
   });
 
   it('accounts for carbonate in the titrant when its concentration is given (2 % of the NaOH as carbonate)', () => {
-    const { doc, trueVeMl } = syntheticRun({ pKa: [4.756], concentrationM: 0.1, seed: 15, carbonateM: 0.002 });
+    const { doc, trueVeMl } = syntheticRun({ pKa: [4.756], concentrationM: 0.1, seed: 15, carbonateM: 0.002, activity: 'davies' });
     const r = run(doc);
-    expect(Math.abs(r.equivalencePoints[0].volumeMl / trueVeMl[0] - 1)).toBeLessThan(0.003);
-    expect(Math.abs(r.pKaThermodynamic[0] - 4.756)).toBeLessThan(0.03);
+    // over seeds 200–219: Ve within 0.01 %, pKa within 0.0015 (the shared tolerances above hold with room)
+    expect(Math.abs(r.equivalencePoints[0].volumeMl / trueVeMl[0] - 1)).toBeLessThan(VE_REL_TOL);
+    // acetic 4.756 (CRC-style table)
+    expect(Math.abs(r.pKaThermodynamic[0] - 4.756)).toBeLessThan(PKA_TOL);
     expect(r.fit!.rmse).toBeLessThan(0.01);
     // ignoring it leaves a visibly worse fit of the same readings
     const { carbonateM: _ignored, ...titrant } = doc.titrant;
