@@ -1,6 +1,7 @@
 import { and, asc, desc, eq, ilike, or, sql, type SQL } from 'drizzle-orm';
 import { auditLog, checkpoints, labs, memberships, readings, runEvents, runs, users } from '../../db/schema';
 import { runComments, runReviewEvents, runRevisions } from '../../db/schema/desk';
+import { runClockFlags } from '../../db/schema/sync';
 import type { RunListQuery } from '../../shared/schemas/desk';
 import type { Executor } from './executor';
 
@@ -140,6 +141,15 @@ export async function runWithAnalyst(db: Executor, runId: string) {
     .where(eq(runs.id, runId))
     .limit(1);
   return rows[0];
+}
+
+/** Devices whose clock was found far off while they synced this run (largest offset each). */
+export async function clockFlagsOf(db: Executor, runId: string) {
+  return db
+    .select({ deviceId: runClockFlags.deviceId, offsetMs: runClockFlags.offsetMs, flaggedAt: runClockFlags.flaggedAt })
+    .from(runClockFlags)
+    .where(eq(runClockFlags.runId, runId))
+    .orderBy(asc(runClockFlags.flaggedAt));
 }
 
 export async function lockRunRow(tx: Executor, runId: string) {

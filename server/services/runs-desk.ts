@@ -165,7 +165,7 @@ export async function runDetail(app: ServerContext, caller: Caller, labId: strin
   const found = await repo.runWithAnalyst(db, runId);
   if (!found || found.run.labId !== labId) throw notFound('Run');
   const { run } = found;
-  const [rs, cps, evs, comments, review, rev, atts, history, labRow] = await Promise.all([
+  const [rs, cps, evs, comments, review, rev, atts, history, labRow, clockFlags] = await Promise.all([
     repo.readingsOf(db, runId),
     repo.checkpointsOf(db, runId),
     repo.eventsOf(db, runId),
@@ -175,6 +175,7 @@ export async function runDetail(app: ServerContext, caller: Caller, labId: strin
     attachmentsRepo.listForRun(db, runId),
     repo.auditOfRun(db, runId),
     repo.labSettings(db, labId),
+    repo.clockFlagsOf(db, runId),
   ]);
   const built = runDocumentOf(run.setup, run.sampleName, rs, cps, evs);
   const { analysis, error } = analyse(built.doc);
@@ -253,6 +254,7 @@ export async function runDetail(app: ServerContext, caller: Caller, labId: strin
     review: review.map((r) => ({ ...r, kind: r.kind as 'submit', at: r.at.toISOString() })),
     attachments: atts.map(attachmentsRepo.toApi),
     history: historyRows,
+    clockFlags: clockFlags.map((f) => ({ deviceId: f.deviceId, offsetMs: f.offsetMs, flaggedAt: f.flaggedAt.toISOString() })),
     can: {
       comment: Boolean(role),
       submit: !locked && (role === 'analyst' || role === 'manager') && ['finished', 'returned', 'recording', 'ready'].includes(run.status),

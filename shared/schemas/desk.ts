@@ -183,6 +183,11 @@ export interface RunDetail {
   review: ReviewEvent[];
   attachments: Attachment[];
   history: HistoryEntry[];
+  /**
+   * Devices whose wall clock was far off (device minus server, ms) when they synced this run. Nothing in the run is
+   * ordered or resolved by device time; the flag tells the reader that device times shown may be off.
+   */
+  clockFlags: { deviceId: string; offsetMs: number; flaggedAt: string }[];
   /** What the caller may do here. */
   can: { comment: boolean; submit: boolean; review: boolean; reopen: boolean; attach: boolean };
 }

@@ -4,7 +4,7 @@ import { useState } from 'react';
 import { Pressable, StyleSheet, View } from 'react-native';
 import { Badge, Text } from '../ui';
 import { space } from '../theme/tokens';
-import { describeSync } from './describe';
+import { clockOffsetText, describeSync } from './describe';
 import { useSyncStatus } from './useSync';
 
 export function SyncIndicator() {
@@ -25,8 +25,9 @@ export function SyncIndicator() {
         <View style={styles.detail} testID="sync-detail">
           {status?.message ? <Text variant="caption" tone="muted">{status.message}</Text> : null}
           {status?.clockFlagged ? (
-            <Text variant="caption" tone="warn">
-              This device's clock is off by about {Math.round(Math.abs(status.clockOffsetMs ?? 0) / 60_000)} min; runs recorded now are flagged.
+            <Text variant="caption" tone="warn" testID="sync-clock-flag">
+              This device's clock is {clockOffsetText(status.clockOffsetMs ?? 0)}; runs it syncs now are flagged. Set the
+              device's date and time; readings stay in run-clock order either way.
             </Text>
           ) : null}
           {reasons.map((r, i) => (

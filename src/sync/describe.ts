@@ -5,6 +5,13 @@ import type { SyncStatus } from './engine';
 export function describeSync(s: SyncStatus | null, signedIn: boolean): { label: string; tone: BadgeTone } {
   if (!signedIn) return { label: 'Not signed in: kept on this device', tone: 'neutral' };
   if (!s) return { label: 'Sync starting', tone: 'neutral' };
+  const d = describeState(s);
+  // A clock far off does not stop anything (nothing is ordered by it), but the analyst should set it right.
+  if (s.clockFlagged) return { label: `${d.label} · clock off`, tone: d.tone === 'ok' ? 'warn' : d.tone };
+  return d;
+}
+
+function describeState(s: SyncStatus): { label: string; tone: BadgeTone } {
   const rejected = s.rejected ? ` · ${s.rejected} rejected` : '';
   switch (s.state) {
     case 'offline':
@@ -20,4 +27,11 @@ export function describeSync(s: SyncStatus | null, signedIn: boolean): { label: 
     case 'synced':
       return { label: s.rejected ? `All sent · ${s.rejected} rejected` : 'All synced', tone: s.rejected ? 'danger' : 'ok' };
   }
+}
+
+/** A device clock's offset from the server's (device minus server) as "about 3 days ahead", "about 20 min behind". */
+export function clockOffsetText(offsetMs: number): string {
+  const m = Math.abs(offsetMs) / 60_000;
+  const size = m >= 36 * 60 ? `${Math.round(m / 1440)} days` : m >= 90 ? `${Math.round(m / 60)} h` : `${Math.max(1, Math.round(m))} min`;
+  return `about ${size} ${offsetMs > 0 ? 'ahead of' : 'behind'} the server's`;
 }

@@ -51,6 +51,8 @@ export interface OpenOptions {
   allowConsole?: string[];
   /** No service worker: every request then reaches page.route (the worker would answer from its cache). */
   blockServiceWorkers?: boolean;
+  /** Script run in every page before the app's own (e.g. a device clock set days off). */
+  initScript?: string;
 }
 
 export async function openApp(pathname = '/', opts: OpenOptions = {}): Promise<AppSession> {
@@ -72,6 +74,7 @@ export async function openApp(pathname = '/', opts: OpenOptions = {}): Promise<A
   } else {
     context = await (await browser()).newContext({ viewport, baseURL: baseURL(), serviceWorkers });
   }
+  if (opts.initScript) await context.addInitScript(opts.initScript);
   const watch = (p: Page) => watchErrors(p, errors);
   const page = context.pages()[0] ?? (await context.newPage());
   watch(page);

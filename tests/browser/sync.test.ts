@@ -1,6 +1,7 @@
 // Sync in the browser, on the built export served by the real server: the page is killed in the middle of a sync
 // (the server has committed the push, the answer never reaches the page), the persistent profile is reopened, and
-// the next sync leaves every reading on the server exactly once.
+// the next sync leaves every reading on the server exactly once. A device whose clock is days off records and
+// syncs as usual, and the offset is flagged on the device and on the run report.
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
@@ -8,7 +9,7 @@ import type { Page, Route } from 'playwright-core';
 import { afterAll, describe, expect, it } from 'vitest';
 import { DEMO_USERS } from '../../server/demo/seed';
 import { createRun, settledReadingCount, tap, typeOnKeypad, type SetupValues } from './bench-helpers';
-import { baseURL, closeBrowser, openApp } from './harness';
+import { baseURL, closeBrowser, openApp, shot } from './harness';
 
 afterAll(closeBrowser);
 
@@ -96,5 +97,53 @@ describe('sync in the browser', () => {
     } finally {
       rmSync(profileDir, { recursive: true, force: true });
     }
+  }, 300_000);
+
+  it('a device clock three days ahead: readings accepted in run-clock order, the offset flagged on the device and on the run report', async () => {
+    const skewMs = 3 * 86_400_000;
+    // The device's calendar only: Date runs three days ahead; the run clock (performance.now) is untouched.
+    const initScript = `(() => {
+      const skew = ${skewMs}; const Real = Date;
+      class DeviceDate extends Real { constructor(...a) { if (a.length === 0) super(Real.now() + skew); else super(...a); } static now() { return Real.now() + skew; } }
+      globalThis.Date = DeviceDate;
+    })()`;
+    const session = await openApp('/sign-in', { initScript });
+    const { page } = session;
+    expect(await page.evaluate(() => Date.now() - performance.timeOrigin - performance.now())).toBeGreaterThan(skewMs - 60_000);
+    await signIn(page);
+    await page.goto('/bench');
+    const runId = await createRun(page, { ...DEMO, label: 'Demo: device clock days off' });
+    await page.getByTestId('start-run').click();
+    const pHs = ['3.20', '3.70', '4.10', '4.60'];
+    for (const pH of pHs) {
+      await tap(page, 'tap-reading');
+      await typeOnKeypad(page, pH);
+    }
+    expect(await settledReadingCount(page, pHs.length)).toBe(pHs.length);
+    await page.waitForFunction(() => document.querySelector('[data-testid="sync-state"]')?.textContent === 'All synced · clock off', null, { timeout: 90_000 });
+    await page.getByTestId('sync-state').click();
+    await expect.poll(() => page.getByTestId('sync-clock-flag').textContent()).toContain("about 3 days ahead of the server's");
+    await shot(page, 'sync-clock-off-phone');
+
+    // Every reading on the server once, in the order they were tapped (by run time), whatever the device's calendar.
+    const ids = await serverReadings(runId);
+    expect(ids.length).toBe(pHs.length);
+    const login = await fetch(`${baseURL()}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: analyst.email, password: analyst.password }) });
+    const { accessToken } = (await login.json()) as { accessToken: string };
+    const detail = (await (await fetch(`${baseURL()}/api/runs/${runId}`, { headers: { authorization: `Bearer ${accessToken}` } })).json()) as {
+      readings: { timeS: number; pH: number }[];
+      clockFlags: { offsetMs: number }[];
+    };
+    expect(detail.readings.map((r) => r.pH.toFixed(2))).toEqual(pHs);
+    const times = detail.readings.map((r) => r.timeS);
+    expect(times).toEqual([...times].sort((a, b) => a - b));
+    expect(detail.clockFlags).toHaveLength(1);
+    expect(Math.abs(detail.clockFlags[0].offsetMs - skewMs)).toBeLessThan(60_000);
+
+    // The run report says so to whoever reads it.
+    await page.goto(`/logbook/${runId}`);
+    await expect.poll(() => page.getByTestId('clock-flag').textContent(), { timeout: 30_000 }).toContain("about 3 days ahead of the server's");
+    await shot(page, 'run-report-clock-off-phone');
+    await session.close();
   }, 300_000);
 });

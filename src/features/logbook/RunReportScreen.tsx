@@ -9,6 +9,7 @@ import { LiveStatus } from './LiveStatus';
 import { useLiveFollow } from './useLiveFollow';
 import { useApprove, useComment, useReopen, useReturn, useRunDetail, useSubmit } from './api';
 import { downloadFile, uploadFile } from './download';
+import { clockOffsetText } from '../../sync/describe';
 import { methodLabel, num, when, withU } from './format';
 import { useQueryClient } from '@tanstack/react-query';
 import { keys } from '../../api/keys';
@@ -96,6 +97,12 @@ function Report({ d }: { d: RunDetail }) {
         <Badge label={d.run.status} tone={d.run.status === 'approved' ? 'ok' : d.run.status === 'submitted' ? 'accent' : 'neutral'} testID="run-status" />
         {d.revision.lockedAt && <Badge label={`locked ${when(d.revision.lockedAt)}`} tone="ok" />}
       </View>
+      {d.clockFlags.map((f) => (
+        <Text key={f.deviceId} tone="warn" variant="caption" testID="clock-flag">
+          ⚠ A device that recorded this run had its clock {clockOffsetText(f.offsetMs)} when it synced (noticed {when(f.flaggedAt)} UTC). Readings are
+          placed by the run clock and the server's receipt, never by the device's calendar; device times may be off.
+        </Text>
+      ))}
       <LiveStatus live={live} readings={d.readings} />
       <ReviewCard d={d} />
       <Card title={following ? 'Live estimates' : 'Results'} testID="results-card">
