@@ -1,3 +1,4 @@
+import { readFileSync } from 'node:fs';
 import { afterAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { closeBrowser, DESKTOP, openApp, PHONE, shot } from './harness';
@@ -91,6 +92,30 @@ describe('Calibrate, as a manager', () => {
     // The phone test's calibration and the demo one are both listed.
     expect(await page.getByTestId('drip-history').first().getByText('Gravimetric').count()).toBeGreaterThanOrEqual(2);
     await shot(page, 'calibrate-overview-desktop');
+    await app.close();
+  });
+
+  it('attaches the certificate of the primary standard to the newest standardisation and downloads it back', async () => {
+    // The browser logs the refused upload's 415 (expected below).
+    const app = await openApp('/', { viewport: DESKTOP, allowConsole: ['status of 415'] });
+    const { page } = app;
+    await signInAsManager(page);
+    const files = page.getByTestId('standardisation-files').first();
+    await files.waitFor({ timeout: 30_000 });
+    // A small PDF (the server checks the %PDF- signature, not the name).
+    const pdf = Buffer.from('%PDF-1.4\n1 0 obj<<>>endobj\ntrailer<<>>\n%%EOF\n');
+    const [chooser] = await Promise.all([page.waitForEvent('filechooser'), files.getByTestId('attach-file').click()]);
+    await chooser.setFiles({ name: 'KHP certificate (demo).pdf', mimeType: 'application/pdf', buffer: pdf });
+    const button = files.getByTestId('attachment-KHP certificate (demo).pdf');
+    await button.waitFor({ timeout: 30_000 });
+    await shot(page, 'calibrate-certificate-desktop');
+    const [download] = await Promise.all([page.waitForEvent('download'), button.click()]);
+    expect(readFileSync((await download.path())!).equals(pdf)).toBe(true);
+    // A text file dressed as a PDF is refused with the server's reason, and nothing is added.
+    const [again] = await Promise.all([page.waitForEvent('filechooser'), files.getByTestId('attach-file').click()]);
+    await again.setFiles({ name: 'not really.pdf', mimeType: 'application/pdf', buffer: Buffer.from('just text') });
+    await files.getByTestId('attach-error').waitFor({ timeout: 30_000 });
+    expect(await files.getByTestId('attachment-not really.pdf').count()).toBe(0);
     await app.close();
   });
 });

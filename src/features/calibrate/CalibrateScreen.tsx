@@ -6,7 +6,10 @@ import { space } from '../../theme/tokens';
 import { Badge, Button, Card, Screen, Text } from '../../ui';
 import { dateTime, withUncertainty } from './forms';
 import { HistoryTable } from './HistoryTable';
-import { useActiveLab, useCalibrations } from './hooks';
+import { useQueryClient } from '@tanstack/react-query';
+import type { Standardisation } from '../../../shared/schemas/calibration-api';
+import { FilesCard } from '../files/FilesCard';
+import { calibrationKeys, useActiveLab, useCalibrationFiles, useCalibrations } from './hooks';
 import { ErrorNote, StatusBadge } from './parts';
 
 const METHOD_LABEL: Record<DripCalibration['method'], string> = {
@@ -95,7 +98,28 @@ function BuretteCard({ b, manager, wide }: { b: Burette; manager: boolean; wide:
   );
 }
 
+/** The newest standardisation's files: the certificate of the primary standard, a balance printout. */
+function StandardisationFiles({ labId, s, canAttach }: { labId: string; s: Standardisation; canAttach: boolean }) {
+  const qc = useQueryClient();
+  const files = useCalibrationFiles(labId, s.id);
+  return (
+    <FilesCard
+      inside
+      title={`Files of the standardisation of ${dateTime(s.performedAt).slice(0, 10)}`}
+      files={files.data ?? []}
+      uploadPath={`/labs/${labId}/calibrations/${s.id}/attachments`}
+      canAttach={canAttach}
+      onUploaded={() => qc.invalidateQueries({ queryKey: calibrationKeys.files(labId, s.id) })}
+      empty={files.isLoading ? 'Loading…' : 'No certificate or other file attached.'}
+      attachLabel="Attach a certificate (PDF or photo)"
+      testID="standardisation-files"
+    />
+  );
+}
+
 function LotCard({ l, manager, wide }: { l: TitrantLot; manager: boolean; wide: boolean }) {
+  const { labId } = useActiveLab();
+  const newest = l.standardisations.reduce<Standardisation | null>((a, s) => (!a || s.performedAt > a.performedAt ? s : a), null);
   return (
     <Card title={l.identifier} aside={l.isDemo ? <Badge label="Demo" tone="accent" /> : undefined} testID={`lot-${l.identifier}`}>
       <Text variant="caption" tone="muted">
@@ -123,6 +147,7 @@ function LotCard({ l, manager, wide }: { l: TitrantLot; manager: boolean; wide: 
           <LinkButton href={`/calibrate/standardise?lotId=${l.id}`} label="Standardise" kind="primary" testID="start-standardise" />
         </View>
       ) : null}
+      {labId && newest ? <StandardisationFiles labId={labId} s={newest} canAttach={manager} /> : null}
       {wide && manager ? (
         <HistoryTable
           rows={l.standardisations}

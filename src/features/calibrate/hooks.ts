@@ -15,6 +15,7 @@ import type {
   Standardisation,
   UpdateRecordBody,
 } from '../../../shared/schemas/calibration-api';
+import type { Attachment } from '../../../shared/schemas/desk';
 import { api } from '../../api/client';
 import { keys } from '../../api/keys';
 import { activeMembership, useSession } from '../../state/session';
@@ -22,7 +23,17 @@ import { activeMembership, useSession } from '../../state/session';
 /** Keys of this section, under the lab's key so invalidating the lab refreshes them too. */
 export const calibrationKeys = {
   overview: (labId: string) => [...keys.lab(labId), 'calibrations'] as const,
+  files: (labId: string, calibrationId: string) => [...keys.lab(labId), 'calibration-files', calibrationId] as const,
 };
+
+/** Files attached to one calibration record (e.g. the certificate of the primary standard of a standardisation). */
+export function useCalibrationFiles(labId: string | null, calibrationId: string | null) {
+  return useQuery({
+    queryKey: calibrationKeys.files(labId ?? 'none', calibrationId ?? 'none'),
+    queryFn: () => api<Attachment[]>(`/labs/${labId}/calibrations/${calibrationId}/attachments`),
+    enabled: Boolean(labId && calibrationId),
+  });
+}
 
 export function useActiveLab() {
   const m = useSession(activeMembership);

@@ -19,11 +19,14 @@ function latestReading(readings: readonly ReadingRow[]): ReadingRow | null {
 
 export function LiveStatus({ live, readings }: { live: LiveFollow; readings: readonly ReadingRow[] }) {
   const last = latestReading(readings);
-  // When the screen saw the newest reading arrive, by this device's clock; before that, the server's receipt time
-  // (the two clocks may differ a little).
-  const seen = useRef<{ id: string; at: number } | null>(null);
+  // When the screen saw the newest reading arrive, by this device's clock. "… ago" is said only of a reading seen
+  // arriving: the one already there at opening has only the server's receipt time, and this device's clock may be
+  // hours or days off the server's.
+  const atOpening = useRef<string | null | undefined>(undefined);
+  if (atOpening.current === undefined) atOpening.current = last?.id ?? null;
+  const seen = useRef<{ id: string; at: number; arrived: boolean } | null>(null);
   if (last && seen.current?.id !== last.id) {
-    seen.current = { id: last.id, at: seen.current ? Date.now() : Date.parse(last.receivedAt) };
+    seen.current = { id: last.id, at: Date.now(), arrived: last.id !== atOpening.current };
   }
   const ticking = live.mode === 'live' || live.mode === 'polling';
   const [now, setNow] = useState(() => Date.now());
@@ -35,7 +38,7 @@ export function LiveStatus({ live, readings }: { live: LiveFollow; readings: rea
   if (!live.followed) return null;
 
   const lastText = last
-    ? `Last reading ${last.receivedAt.slice(11, 19)} UTC${ticking ? `, ${ago(now - seen.current!.at)} ago` : ''}`
+    ? `Last reading ${last.receivedAt.slice(11, 19)} UTC${ticking && seen.current!.arrived ? `, ${ago(now - seen.current!.at)} ago` : ''}`
     : 'No reading yet';
   return (
     <View style={styles.box} testID="live-follow">

@@ -1,5 +1,5 @@
 import { useMemo, useState } from 'react';
-import { Platform, StyleSheet, View } from 'react-native';
+import { StyleSheet, View } from 'react-native';
 import type { AnalysisResult } from '../../../shared/schemas/run-document';
 import { APPROVAL_MEANING, type RunDetail } from '../../../shared/schemas/desk';
 import { colors, space } from '../../theme/tokens';
@@ -8,7 +8,8 @@ import { LineChart, type ChartMarker, type ChartSeries } from '../charts/LineCha
 import { LiveStatus } from './LiveStatus';
 import { useLiveFollow } from './useLiveFollow';
 import { useApprove, useComment, useReopen, useReturn, useRunDetail, useSubmit } from './api';
-import { downloadFile, uploadFile } from './download';
+import { FilesCard } from '../files/FilesCard';
+import { downloadFile } from '../files/transfer';
 import { clockOffsetText } from '../../sync/describe';
 import { methodLabel, num, when, withU } from './format';
 import { useQueryClient } from '@tanstack/react-query';
@@ -233,35 +234,7 @@ function Comments({ d }: { d: RunDetail }) {
 
 function Attachments({ d }: { d: RunDetail }) {
   const qc = useQueryClient();
-  const [err, setErr] = useState<string | null>(null);
-  const pick = () => {
-    if (Platform.OS !== 'web' || typeof document === 'undefined') return;
-    const input = document.createElement('input');
-    input.type = 'file';
-    input.accept = 'image/png,image/jpeg,image/webp,image/heic,application/pdf';
-    input.onchange = async () => {
-      const f = input.files?.[0];
-      if (!f) return;
-      setErr(null);
-      try {
-        await uploadFile(`/runs/${d.run.id}/attachments`, f);
-        await qc.invalidateQueries({ queryKey: keys.run(d.run.id) });
-      } catch (e) {
-        setErr((e as Error).message);
-      }
-    };
-    input.click();
-  };
-  return (
-    <Card title="Attachments" testID="attachments">
-      {d.attachments.map((f) => (
-        <Button key={f.id} kind="quiet" label={`${f.originalName} (${Math.ceil(f.sizeBytes / 1024)} KB, ${f.uploadedByName})`} onPress={() => void downloadFile(`/attachments/${f.id}`, f.originalName)} testID={`attachment-${f.originalName}`} />
-      ))}
-      {!d.attachments.length && <Text tone="muted">No files attached.</Text>}
-      {d.can.attach && <Button label="Attach a photo or PDF" kind="secondary" onPress={pick} testID="attach-file" />}
-      {err && <Text tone="danger" testID="attach-error">{err}</Text>}
-    </Card>
-  );
+  return <FilesCard files={d.attachments} uploadPath={`/runs/${d.run.id}/attachments`} canAttach={d.can.attach} onUploaded={() => qc.invalidateQueries({ queryKey: keys.run(d.run.id) })} />;
 }
 
 const styles = StyleSheet.create({
