@@ -321,6 +321,26 @@ describe('exports', () => {
     expect(shown, text.slice(0, 2000)).not.toBeNull();
     // The report gives 5 significant digits: within half a unit of the fifth digit of the result's Ve.
     expect(Math.abs(Number(shown![1]) - ve)).toBeLessThanOrEqual(0.5 * 10 ** (Math.floor(Math.log10(ve)) - 4) * (1 + 1e-9));
+    expect(text).not.toContain('\uFFFD');
+  });
+
+  it('prints a sample name outside WinAnsi as typed (the report embeds its font)', async () => {
+    // Czech and Greek letters, which the PDF standard fonts cannot show (a demo name, invented).
+    const name = 'Kyselina benzoová, vzorek č. 7 — δείγμα (demo)';
+    const [src] = await fx.database.db.select().from(runs).where(eq(runs.id, runIdsA[1]));
+    await fx.database.db.update(runs).set({ sampleName: name }).where(eq(runs.id, runIdsA[1]));
+    try {
+      const res = await fx.api().get(`/api/runs/${runIdsA[1]}/export/report.pdf`).set('authorization', as('viewer')).buffer(true).parse((r, cb) => {
+        const chunks: Buffer[] = [];
+        r.on('data', (c: Buffer) => chunks.push(c));
+        r.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
+      expect(res.status).toBe(200);
+      // The title wraps at 18 pt; pdfkit keeps the space at the end of the first line.
+      expect(pdfPageText(res.body as Buffer).replace(/\n/g, '')).toContain(`Run report: ${name}`);
+    } finally {
+      await fx.database.db.update(runs).set({ sampleName: src.sampleName }).where(eq(runs.id, runIdsA[1]));
+    }
   });
 });
 

@@ -1,4 +1,5 @@
 import Papa from 'papaparse';
+import { fileURLToPath } from 'node:url';
 import PDFDocument from 'pdfkit';
 import type { RunDetail } from '../../shared/schemas/desk';
 import type { AnalysisResult } from '../../shared/schemas/run-document';
@@ -58,6 +59,12 @@ export function resultsCsv(d: RunDetail): string {
 
 const fmt = (x: number | null | undefined, digits = 4) => (x == null || !Number.isFinite(x) ? '—' : Number(x.toPrecision(digits)).toString());
 
+/**
+ * The report's font: Inter (SIL OFL, shipped in assets/fonts), embedded and subset by pdfkit, so a sample name in any
+ * Latin, Greek or Cyrillic script, "≈" or "⁻⁵" prints as typed (the PDF standard fonts only cover WinAnsi).
+ */
+const REPORT_FONT = fileURLToPath(new URL('../../assets/fonts/Inter_400Regular.ttf', import.meta.url));
+
 /** The run report as PDF bytes. */
 export function reportPdf(d: RunDetail, meta: { labName: string; generatedAt: Date }): Promise<Buffer> {
   const doc = new PDFDocument({ size: 'A4', margin: 50, info: { Title: `Run report: ${d.run.sampleName}`, Producer: 'Halfmark' } });
@@ -69,6 +76,7 @@ export function reportPdf(d: RunDetail, meta: { labName: string; generatedAt: Da
   });
   const a = d.analysis as AnalysisResult | null;
 
+  doc.font(REPORT_FONT);
   doc.fontSize(18).text(`Run report: ${d.run.sampleName}`);
   doc.moveDown(0.3).fontSize(10).fillColor('#444');
   doc.text(`${meta.labName}${d.run.isDemo ? ' — demo data, invented' : ''}`);
