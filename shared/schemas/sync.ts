@@ -140,7 +140,7 @@ export const changeSchema = z.object({
 export type Change = z.infer<typeof changeSchema>;
 
 /**
- * Changes in one push at most. 2,000 readings make a body of about 0.6 MB (under the 2 MB limit) and one
+ * Changes in one push at most. 2,000 readings make a body of about 0.4 MB (under the 2 MB limit) and one
  * transaction of a few hundred ms on PGlite; halving the requests of a long offline run cut its sync time by about
  * 15 % against 1,000 (npm run bench -- sync).
  */
