@@ -133,6 +133,27 @@ describe('live follow of a run in progress', () => {
       expect(await blocked.page.getByTestId('live-state').innerText()).toBe('Polling');
       await shot(blocked.page, 'live-follow-polling-phone');
 
+      // --- the colleague's page goes to the background: no polling while hidden; shown again, it catches up ---
+      const setHidden = (hidden: boolean) =>
+        blocked.page.evaluate((h) => {
+          if (h) Object.defineProperty(document, 'visibilityState', { configurable: true, get: () => 'hidden' });
+          else delete (document as { visibilityState?: unknown }).visibilityState;
+          document.dispatchEvent(new Event('visibilitychange'));
+        }, hidden);
+      const shownRows = pHs.length + 1 + more.length;
+      await setHidden(true);
+      await blocked.page.getByTestId('live-state').getByText('Paused').waitFor({ timeout: 10_000 });
+      const pollsWhenHidden = polled.poll;
+      await tap(bench.page, 'tap-reading');
+      await typeOnKeypad(bench.page, '5.70');
+      expect(await settledReadingCount(bench.page, shownRows + 1)).toBe(shownRows + 1);
+      await blocked.page.waitForTimeout(5000);
+      expect(polled.poll, 'no polling while the page is hidden').toBe(pollsWhenHidden);
+      expect(await reportRows(blocked.page).count()).toBe(shownRows);
+      await setHidden(false);
+      await expect.poll(() => reportRows(blocked.page).count(), { timeout: POLL_BOUND_MS }).toBe(shownRows + 1);
+      await blocked.page.getByTestId('live-state').getByText('Polling').waitFor({ timeout: 10_000 });
+
       // --- the analyst finishes: the colleague's screen stops following ---
       await bench.page.getByTestId('finish-run').click();
       await bench.page.getByTestId('confirm-finish').click();

@@ -8,8 +8,8 @@ import { Text } from '../../ui';
 import { ago } from './format';
 import type { LiveFollow } from './useLiveFollow';
 
-const LABEL = { connecting: 'Connecting…', live: 'Following live', polling: 'Polling', stopped: 'Stopped' } as const;
-const DOT = { connecting: colors.inkFaint, live: colors.ok, polling: colors.warn, stopped: colors.lineStrong } as const;
+const LABEL = { connecting: 'Connecting…', live: 'Following live', polling: 'Polling', paused: 'Paused', stopped: 'Stopped' } as const;
+const DOT = { connecting: colors.inkFaint, live: colors.ok, polling: colors.warn, paused: colors.inkFaint, stopped: colors.lineStrong } as const;
 
 function latestReading(readings: readonly ReadingRow[]): ReadingRow | null {
   let best: ReadingRow | null = null;

@@ -6,7 +6,8 @@ import type { PullResponse, PulledChange } from '../../../shared/schemas/sync';
 import { ApiRequestError } from '../../api/errors';
 import type { OpenEventStream } from '../../api/liveStream.types';
 
-export type FollowMode = 'connecting' | 'live' | 'polling' | 'stopped';
+/** `paused` is set by the screen while it is hidden (the follower itself is stopped then). */
+export type FollowMode = 'connecting' | 'live' | 'polling' | 'paused' | 'stopped';
 
 export interface FollowState {
   mode: FollowMode;
