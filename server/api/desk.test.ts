@@ -1,5 +1,6 @@
 import { and, count, eq, sql } from 'drizzle-orm';
 import Papa from 'papaparse';
+import type { Response } from 'superagent';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { auditLog, outbox, readings, runs, syncChanges, users } from '../../db/schema';
 import { serverContextOf } from '../app';
@@ -25,6 +26,12 @@ const day = 86_400_000;
 const base = Date.UTC(2026, 2, 1, 9, 0, 0);
 
 const as = (who: 'manager' | 'analyst' | 'viewer' | 'managerB') => `Bearer ${tokens[who]}`;
+/** A supertest parser that keeps a binary answer (PDF, image) as one Buffer. */
+const bytes = (r: Response, cb: (err: Error | null, body: Buffer) => void) => {
+  const chunks: Buffer[] = [];
+  r.on('data', (c: Buffer) => chunks.push(c));
+  r.on('end', () => cb(null, Buffer.concat(chunks)));
+};
 
 beforeAll(async () => {
   fx = await authFixture();
@@ -301,11 +308,7 @@ describe('exports', () => {
   });
 
   it('makes a PDF report', async () => {
-    const res = await fx.api().get(`/api/runs/${runIdsA[0]}/export/report.pdf`).set('authorization', as('viewer')).buffer(true).parse((r, cb) => {
-      const chunks: Buffer[] = [];
-      r.on('data', (c: Buffer) => chunks.push(c));
-      r.on('end', () => cb(null, Buffer.concat(chunks)));
-    });
+    const res = await fx.api().get(`/api/runs/${runIdsA[0]}/export/report.pdf`).set('authorization', as('viewer')).buffer(true).parse(bytes);
     expect(res.status).toBe(200);
     expect(res.headers['content-type']).toBe('application/pdf');
     const body = res.body as Buffer;
@@ -330,11 +333,7 @@ describe('exports', () => {
     const [src] = await fx.database.db.select().from(runs).where(eq(runs.id, runIdsA[1]));
     await fx.database.db.update(runs).set({ sampleName: name }).where(eq(runs.id, runIdsA[1]));
     try {
-      const res = await fx.api().get(`/api/runs/${runIdsA[1]}/export/report.pdf`).set('authorization', as('viewer')).buffer(true).parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+      const res = await fx.api().get(`/api/runs/${runIdsA[1]}/export/report.pdf`).set('authorization', as('viewer')).buffer(true).parse(bytes);
       expect(res.status).toBe(200);
       // The title wraps at 18 pt; pdfkit keeps the space at the end of the first line.
       expect(pdfPageText(res.body as Buffer).replace(/\n/g, '')).toContain(`Run report: ${name}`);
@@ -449,11 +448,7 @@ describe.each([
     const up = await upload('analyst', PNG, '../../etc/passwd"; x=.png', 'image/png');
     expect(up.status).toBe(201);
     expect(up.body).toMatchObject({ mimeType: 'image/png', sizeBytes: PNG.length, originalName: 'passwd; x=.png' });
-    const down = await fx.api().get(`/api/attachments/${up.body.id}`).set('authorization', as('viewer')).buffer(true).parse((r, cb) => {
-      const c: Buffer[] = [];
-      r.on('data', (x: Buffer) => c.push(x));
-      r.on('end', () => cb(null, Buffer.concat(c)));
-    });
+    const down = await fx.api().get(`/api/attachments/${up.body.id}`).set('authorization', as('viewer')).buffer(true).parse(bytes);
     expect(down.status).toBe(200);
     expect(Buffer.compare(down.body as Buffer, PNG)).toBe(0);
     expect(down.headers['content-disposition']).toMatch(/^attachment; filename="passwd; x=.png"/);
