@@ -140,28 +140,34 @@ function readingColumns(now: () => string): [name: string, type: string, get: (r
  * value, which PGlite and PostgreSQL bind and plan several times faster than a many-row VALUES list. A column whose
  * value is the same on every row (the run, the lab, the receipt time of one push) goes as one value, not an array.
  * Each new reading takes its change-log position (readings.seq) from the change log's sequence, under the sync lock
- * like every writer of the log, so pulls meet it in order without a sync_changes row of its own.
+ * like every writer of the log, so pulls meet it in order without a sync_changes row of its own. The positions are
+ * reserved as one block (one setval instead of a nextval per row) and handed out by row order; a row that was
+ * already stored leaves its place unused, a gap pulls step over like any other.
  */
 export async function insertReadingsIgnoringExisting(tx: Executor, rows: ReadingInsert[]): Promise<Inserted> {
   if (!rows.length) return { ids: new Set(), maxSeq: null };
-  await lockSync(tx);
+  const reserved = await tx.execute<{ last: string | number }>(sql`
+    with sync_lock as (select pg_advisory_xact_lock(${SYNC_LOCK}))
+    select setval('sync_changes_seq_seq', nextval('sync_changes_seq_seq') + ${rows.length - 1}) as last from sync_lock`);
+  const last = Number(rowsOf<{ last: string | number }>(reserved)[0].last);
+  const first = last - rows.length + 1;
   const arrays: SQL[] = [];
   const names: string[] = [];
   const selected: SQL[] = [];
   let ids = '';
   for (const [name, type, get] of readingColumns(() => new Date().toISOString())) {
-    const first = get(rows[0]);
-    let literal = `{${element(first)}`;
+    const head = get(rows[0]);
+    let literal = `{${element(head)}`;
     let uniform = name !== 'id';
     for (let i = 1; i < rows.length; i++) {
       const v = get(rows[i]);
-      if (uniform && v !== first) uniform = false;
+      if (uniform && v !== head) uniform = false;
       literal += `,${element(v)}`;
     }
     literal += '}';
     if (name === 'id') ids = literal;
     if (uniform) {
-      selected.push(sql`${first}::${sql.raw(type)}`);
+      selected.push(sql`${head}::${sql.raw(type)}`);
     } else {
       arrays.push(sql`${literal}::${sql.raw(type)}[]`);
       names.push(name);
@@ -169,24 +175,30 @@ export async function insertReadingsIgnoringExisting(tx: Executor, rows: Reading
     }
   }
   const columns = sql.raw(readingColumns(() => '').map(([name]) => name).join(', '));
-  // Only a count comes back when every row went in (a push's usual case): 10,000 returned ids cost more to send and
-  // read than the check below, which runs only when some id was already taken.
-  const res = await tx.execute<{ n: number; min_seq: string | number | null; max_seq: string | number | null }>(sql`
-    with ins as (
-      insert into ${readings} (${columns}, seq)
-      select ${sql.join(selected, sql`, `)}, nextval('sync_changes_seq_seq')
-      from unnest(${sql.join(arrays, sql`, `)}) as u(${sql.raw(names.join(', '))})
-      on conflict do nothing
-      returning seq
-    )
-    select count(*)::int as n, min(seq) as min_seq, max(seq) as max_seq from ins`);
-  const [{ n, min_seq, max_seq }] = rowsOf<{ n: number; min_seq: string | number | null; max_seq: string | number | null }>(res);
+  // No RETURNING: the command's row count says whether every row went in (a push's usual case); 10,000 returned
+  // rows cost more to send and read than the check below, which runs only when some id was already taken.
+  const res = await tx.execute(sql`
+    insert into ${readings} (${columns}, seq)
+    select ${sql.join(selected, sql`, `)}, ${first - 1}::int8 + u.place
+    from unnest(${sql.join(arrays, sql`, `)}) with ordinality as u(${sql.raw(names.join(', '))}, place)
+    on conflict do nothing`);
+  const n = affectedOf(res);
+  if (n === rows.length) return { ids: new Set(rows.map((r) => r.id)), maxSeq: last };
   if (!n) return { ids: new Set(), maxSeq: null };
-  if (n === rows.length) return { ids: new Set(rows.map((r) => r.id)), maxSeq: Number(max_seq) };
-  // Some ids were taken: the new rows are those whose place was taken by this statement (rows stored before have a
-  // lower one, or none).
-  const fresh = await tx.execute<{ id: string }>(sql`select id from ${readings} where id = any(${ids}::uuid[]) and seq >= ${Number(min_seq)}`);
-  return { ids: new Set(rowsOf<{ id: string }>(fresh).map((r) => r.id)), maxSeq: Number(max_seq) };
+  // Some ids were taken: the new rows are those holding a place of this block (rows stored before hold an older
+  // place, or none).
+  const fresh = rowsOf<{ id: string; seq: string | number }>(
+    await tx.execute(sql`select id, seq from ${readings} where id = any(${ids}::uuid[]) and seq between ${first} and ${last}`),
+  );
+  return { ids: new Set(fresh.map((r) => r.id)), maxSeq: fresh.reduce((m, r) => Math.max(m, Number(r.seq)), first) };
+}
+
+/** Rows an INSERT wrote: PGlite reports affectedRows, node-postgres rowCount. */
+function affectedOf(res: unknown): number {
+  const r = res as { affectedRows?: number; rowCount?: number | null };
+  const n = r.affectedRows ?? r.rowCount;
+  if (typeof n !== 'number') throw new Error('The database driver did not say how many rows the insert wrote.');
+  return n;
 }
 
 /** Stored payload hashes of these ids in one table (for replays: "already have it" or a conflicting payload). */

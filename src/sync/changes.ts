@@ -26,10 +26,23 @@ export interface MapContext {
   runLab(runId: string): Promise<string | null>;
 }
 
+/** Only the insert of a run needs a lookup (its lab, which may be set after the run was made); the rest map at once. */
+export const needsLab = (row: OutboxRow): boolean => row.entity === 'run' && row.op === 'insert';
+
 export async function toChanges(row: OutboxRow, ctx: MapContext): Promise<Mapped> {
-  const seq = (slot: number) => row.seq * SLOTS + slot;
-  const recordedAt = Math.max(0, Math.round(row.createdWallMs));
-  const mk = (slot: number, kind: Change['kind'], id: string, payload: unknown): Change => ({ id, kind, seq: seq(slot), recordedAt, payload });
+  if (!needsLab(row)) return changesOf(row, ctx.deviceId, null);
+  const labId = await ctx.runLab((row.payload as RunRow).id);
+  if (!labId) return { kind: 'wait', reason: 'This run belongs to no lab yet: sign in to send it.' };
+  return changesOf(row, ctx.deviceId, labId);
+}
+
+// Module-level, not a closure per row: a long offline run maps tens of thousands of rows in one sync.
+function change(row: OutboxRow, slot: number, kind: Change['kind'], id: string, payload: unknown): Change {
+  return { id, kind, seq: row.seq * SLOTS + slot, recordedAt: Math.max(0, Math.round(row.createdWallMs)), payload };
+}
+
+/** The mapping itself, synchronous; `labId` is the run's lab for a run insert (see needsLab), unused otherwise. */
+export function changesOf(row: OutboxRow, deviceId: string, labId: string | null): Mapped {
   let changes: Change[];
   switch (row.entity) {
     case 'mark':
@@ -37,10 +50,9 @@ export async function toChanges(row: OutboxRow, ctx: MapContext): Promise<Mapped
     case 'run': {
       if (row.op === 'insert') {
         const r = row.payload as RunRow;
-        const labId = await ctx.runLab(r.id);
         if (!labId) return { kind: 'wait', reason: 'This run belongs to no lab yet: sign in to send it.' };
         const setup = r.setup && typeof r.setup === 'object' && !Array.isArray(r.setup) ? r.setup : { value: r.setup ?? null };
-        changes = [mk(0, 'run', r.id, { labId, sampleName: r.label, setup, notes: r.notes ?? '', status: r.status })];
+        changes = [change(row, 0, 'run', r.id, { labId, sampleName: r.label, setup, notes: r.notes ?? '', status: r.status })];
       } else {
         const p = row.payload as { id: string; label?: string; notes?: string; status?: string; baseServerVersion?: number | null };
         const base = p.baseServerVersion ?? null;
@@ -50,7 +62,7 @@ export async function toChanges(row: OutboxRow, ctx: MapContext): Promise<Mapped
           ['status', p.status],
         ];
         changes = fields
-          .map(([field, value], i) => (value === undefined ? null : mk(i, 'run_meta_edit', editId(ctx.deviceId, row.seq, field), { runId: p.id, field, value, baseVersion: base })))
+          .map(([field, value], i) => (value === undefined ? null : change(row, i, 'run_meta_edit', editId(deviceId, row.seq, field), { runId: p.id, field, value, baseVersion: base })))
           .filter((c): c is Change => c !== null);
       }
       break;
@@ -58,16 +70,16 @@ export async function toChanges(row: OutboxRow, ctx: MapContext): Promise<Mapped
     case 'run_event': {
       const e = row.payload as RunEventRow;
       const atS = typeof e.data?.atS === 'number' && e.data.atS >= 0 ? e.data.atS : 0;
-      changes = [mk(0, 'run_event', e.id, { runId: e.runId, kind: e.kind, timeS: atS, detail: { ...(e.data ?? {}), monoMs: e.monoMs } })];
-      if (e.kind === 'submit') changes.push(mk(1, 'submission', editId(ctx.deviceId, row.seq, 'submission'), { runId: e.runId }));
+      changes = [change(row, 0, 'run_event', e.id, { runId: e.runId, kind: e.kind, timeS: atS, detail: { ...(e.data ?? {}), monoMs: e.monoMs } })];
+      if (e.kind === 'submit') changes.push(change(row, 1, 'submission', editId(deviceId, row.seq, 'submission'), { runId: e.runId }));
       break;
     }
     case 'reading': {
       const r = row.payload as ReadingRow;
       changes = [
         r.replacesId
-          ? mk(0, 'correction', r.id, { of: 'reading', runId: r.runId, replacesId: r.replacesId, reason: r.reason ?? '', withdraw: r.voided, timeS: r.timeS, pH: r.pH, mV: r.mV })
-          : mk(0, 'reading', r.id, { runId: r.runId, timeS: r.timeS, pH: r.pH, mV: r.mV }),
+          ? change(row, 0, 'correction', r.id, { of: 'reading', runId: r.runId, replacesId: r.replacesId, reason: r.reason ?? '', withdraw: r.voided, timeS: r.timeS, pH: r.pH, mV: r.mV })
+          : change(row, 0, 'reading', r.id, { runId: r.runId, timeS: r.timeS, pH: r.pH, mV: r.mV }),
       ];
       break;
     }
@@ -75,8 +87,8 @@ export async function toChanges(row: OutboxRow, ctx: MapContext): Promise<Mapped
       const c = row.payload as CheckpointRow;
       changes = [
         c.replacesId
-          ? mk(0, 'correction', c.id, { of: 'checkpoint', runId: c.runId, replacesId: c.replacesId, reason: c.reason ?? '', withdraw: c.voided, timeS: c.timeS, buretteMl: c.buretteMl })
-          : mk(0, 'checkpoint', c.id, { runId: c.runId, timeS: c.timeS, buretteMl: c.buretteMl }),
+          ? change(row, 0, 'correction', c.id, { of: 'checkpoint', runId: c.runId, replacesId: c.replacesId, reason: c.reason ?? '', withdraw: c.voided, timeS: c.timeS, buretteMl: c.buretteMl })
+          : change(row, 0, 'checkpoint', c.id, { runId: c.runId, timeS: c.timeS, buretteMl: c.buretteMl }),
       ];
       break;
     }

@@ -5,7 +5,7 @@
 // server said it never can take it, with the reason, shown to the user).
 import { MAX_BATCH, type Change, type ChangeResult, type MetaResolution, type PullResponse, type PulledChange, type PushRequest, type PushResponse } from '../../shared/schemas/sync';
 import type { OutboxRow } from '../local/types';
-import { SLOTS, toChanges } from './changes';
+import { changesOf, needsLab, SLOTS, toChanges, type MapContext } from './changes';
 
 export interface Settlement {
   /** Outbox seq of the row. */
@@ -211,15 +211,18 @@ export class SyncEngine {
 
   /** Pushes batches until the queue is empty or waits on a row; returns why it waits, if it does. */
   private async pushAll(): Promise<string | null> {
+    const ctx: MapContext = { deviceId: this.store.deviceId, runLab: (id) => this.store.runLab(id) };
     for (;;) {
       const rows = await this.store.pendingOutbox(this.o.batchSize);
       if (!rows.length) return null;
       const local: Settlement[] = [];
-      const send: { row: OutboxRow; ids: Set<string> }[] = [];
+      const send: OutboxRow[] = [];
       const changes: Change[] = [];
       let waitReason: string | null = null;
       for (const row of rows) {
-        const m = await toChanges(row, { deviceId: this.store.deviceId, runLab: (id) => this.store.runLab(id) });
+        // Only a run's first row waits on the database (its lab); awaiting every row would cost a turn of the
+        // event loop per reading.
+        const m = needsLab(row) ? await toChanges(row, ctx) : changesOf(row, ctx.deviceId, null);
         if (m.kind === 'wait') {
           waitReason = m.reason;
           break;
@@ -228,8 +231,8 @@ export class SyncEngine {
         else if (m.kind === 'invalid') local.push({ seq: row.seq, state: 'rejected', reason: m.reason });
         else {
           if (changes.length + m.changes.length > this.o.maxChanges) break;
-          changes.push(...m.changes);
-          send.push({ row, ids: new Set(m.changes.map((c) => c.id)) });
+          for (const c of m.changes) changes.push(c);
+          send.push(row);
         }
       }
       if (!changes.length) {
@@ -239,19 +242,22 @@ export class SyncEngine {
       }
       const res = await this.transport.push({ deviceId: this.store.deviceId, sentAt: Math.max(0, Math.round(this.o.now())), changes });
       this.set({ clockOffsetMs: res.clockOffsetMs, clockFlagged: res.clockFlagged });
-      const byId = new Map(changes.map((c) => [c.id, c]));
+      // Results by outbox row (a row's changes share its seq ÷ SLOTS); most rows have exactly one.
       const byRow = new Map<number, ChangeResult[]>();
       for (const r of res.results) {
         const seq = Math.floor(r.seq / SLOTS);
-        byRow.set(seq, [...(byRow.get(seq) ?? []), r]);
+        const list = byRow.get(seq);
+        if (list) list.push(r);
+        else byRow.set(seq, [r]);
       }
-      const settled: Settlement[] = [...local];
-      for (const { row } of send) {
+      let runOf: Map<string, Change> | null = null;
+      const settled: Settlement[] = local;
+      for (const row of send) {
         const results = byRow.get(row.seq) ?? [];
         const failed = results.filter((r) => FAILED.includes(r.outcome));
-        const meta = results
-          .filter((r) => r.meta)
-          .map((r) => ({ ...r.meta!, runId: (byId.get(r.id)?.payload as { runId: string }).runId }));
+        const withMeta = results.filter((r) => r.meta);
+        runOf ??= withMeta.length ? new Map(changes.map((c) => [c.id, c])) : null;
+        const meta = withMeta.map((r) => ({ ...r.meta!, runId: (runOf!.get(r.id)?.payload as { runId: string }).runId }));
         settled.push(
           failed.length
             ? { seq: row.seq, state: 'rejected', reason: failed.map((f) => f.reason ?? f.outcome).join('; '), meta }
