@@ -4,7 +4,6 @@ import { router } from 'expo-router';
 import { memo, useCallback, useDeferredValue, useEffect, useMemo, useRef, useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import type { DeliveryMap } from '../../../shared/engine';
-import type { AnalysisResult } from '../../../shared/schemas/run-document';
 import type { MarkRow, ReadingRow } from '../../local/types';
 import { useLayoutSize } from '../../theme/layout';
 import { colors, radius, space } from '../../theme/tokens';
@@ -46,7 +45,7 @@ import {
   type RunActions,
   type RunStore,
 } from './useBenchRun';
-import { useLiveAnalysis, type Analysis } from './useLiveAnalysis';
+import { useLiveAnalysis, type LiveAnalysis, type LiveResult } from './useLiveAnalysis';
 import { useScreenAwake } from './wakeLock';
 import { Field } from '../../ui';
 import { numberOrUndefined } from './setup';
@@ -292,7 +291,7 @@ const RunControls = memo(function RunControls({ clockEvents, status, plan, onClo
 });
 
 /** Stored readings so far and the analysis's current estimates. */
-const LiveEstimates = memo(function LiveEstimates({ count, analysis }: { count: number; analysis: Analysis | null }) {
+const LiveEstimates = memo(function LiveEstimates({ count, analysis }: { count: number; analysis: LiveAnalysis | null }) {
   const est = analysis?.result;
   return (
     <Card testID="live-estimate">
@@ -307,7 +306,7 @@ const LiveEstimates = memo(function LiveEstimates({ count, analysis }: { count: 
 });
 
 /** The curve so far on the volume axis, with the plan's prediction and the analysis's markers. */
-const LiveChart = memo(function LiveChart({ readings, deliveryMap, plan, result, height }: { readings: readonly Effective<ReadingRow>[]; deliveryMap: DeliveryMap | null; plan: PlanResult | null; result: AnalysisResult | null; height: number }) {
+const LiveChart = memo(function LiveChart({ readings, deliveryMap, plan, result, height }: { readings: readonly Effective<ReadingRow>[]; deliveryMap: DeliveryMap | null; plan: PlanResult | null; result: LiveResult | null; height: number }) {
   const points = useMemo(() => {
     if (!deliveryMap) return [];
     const out: { x: number; y: number }[] = [];

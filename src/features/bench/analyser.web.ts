@@ -2,7 +2,7 @@
 // `new Worker(new URL('./analysis.worker', …))` into its own chunk, which the service worker precaches with the
 // others (offline works the same). If the worker cannot start or fails, the main-thread analyser takes over.
 import type { RunDocumentInput } from '../../../shared/schemas/run-document';
-import { mainThreadAnalyser, type Analyser, type AnalyserReply, type AnalyserRequest } from './analyserCore';
+import { mainThreadAnalyser, packRequest, unpackReply, type Analyser, type AnalyserReply, type LiveAnalysis } from './analyserCore';
 
 export type { Analyser } from './analyserCore';
 
@@ -15,7 +15,7 @@ export function createAnalyser(): Analyser {
   }
   let nextId = 0;
   let fallback: Analyser | null = null;
-  const waiting = new Map<number, { doc: RunDocumentInput; resolve: (r: Omit<AnalyserReply, 'id'>) => void }>();
+  const waiting = new Map<number, { doc: RunDocumentInput; resolve: (r: { analysis: LiveAnalysis | null; ms: number }) => void }>();
   const failOver = () => {
     // The worker is gone (failed to load, crashed): answer what it held on the main thread from now on.
     fallback ??= mainThreadAnalyser();
@@ -29,7 +29,7 @@ export function createAnalyser(): Analyser {
     const w = waiting.get(e.data.id);
     if (!w) return;
     waiting.delete(e.data.id);
-    w.resolve({ analysis: e.data.analysis, ms: e.data.ms });
+    w.resolve({ analysis: unpackReply(e.data), ms: e.data.ms });
   };
   worker.onerror = (e) => {
     e.preventDefault();
@@ -44,7 +44,8 @@ export function createAnalyser(): Analyser {
       return new Promise((resolve) => {
         const id = nextId++;
         waiting.set(id, { doc, resolve });
-        worker.postMessage({ id, doc } satisfies AnalyserRequest);
+        const { message, transfer } = packRequest(id, doc);
+        worker.postMessage(message, transfer);
       });
     },
     dispose() {

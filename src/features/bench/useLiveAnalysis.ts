@@ -5,9 +5,9 @@
 import { startTransition, useEffect, useRef, useState } from 'react';
 import type { RunDocumentInput } from '../../../shared/schemas/run-document';
 import { createAnalyser, type Analyser } from './analyser';
-import type { Analysis } from './liveAnalysis';
+import type { LiveAnalysis } from './analyserCore';
 
-export { analyse, type Analysis } from './liveAnalysis';
+export type { LiveAnalysis, LiveResult } from './analyserCore';
 
 /** Spacing of runs: at least `minGapMs`, and `share` × the last run's cost. */
 const PACE = {
@@ -16,8 +16,8 @@ const PACE = {
   worker: { minGapMs: 300, share: 2 },
 };
 
-export function useLiveAnalysis(doc: RunDocumentInput | null, enabled: boolean): Analysis | null {
-  const [analysis, setAnalysis] = useState<Analysis | null>(null);
+export function useLiveAnalysis(doc: RunDocumentInput | null, enabled: boolean): LiveAnalysis | null {
+  const [analysis, setAnalysis] = useState<LiveAnalysis | null>(null);
   const docRef = useRef(doc);
   docRef.current = doc;
   const analyser = useRef<Analyser | null>(null);

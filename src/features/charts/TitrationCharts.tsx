@@ -11,7 +11,8 @@ export interface CurveChartProps {
   readings: readonly XY[];
   /** Predicted curve (the plan), drawn dashed. */
   predicted?: readonly XY[];
-  result?: Pick<AnalysisResult, 'derivative' | 'equivalencePoints' | 'halfEquivalence'> | null;
+  /** An engine result, or the live part of one (the bench's live analysis). */
+  result?: { derivative: readonly Pick<AnalysisResult['derivative'][number], 'volumeMl' | 'dpHdV'>[]; equivalencePoints: AnalysisResult['equivalencePoints']; halfEquivalence: AnalysisResult['halfEquivalence'] } | null;
   showDerivative?: boolean;
   height?: number;
   testID?: string;
