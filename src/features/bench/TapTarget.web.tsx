@@ -22,6 +22,9 @@ export function TapTarget({ onTap, disabled, style, pressedStyle: _phoneOnly, ch
       if (e.button !== 0 && e.pointerType === 'mouse') return;
       const now = performance.now();
       const ts = e.timeStamp > 0 && e.timeStamp <= now && now - e.timeStamp < 1000 ? e.timeStamp : now;
+      // No mousedown/mouseup after it (the target needs neither, and they would be dispatched through the page's
+      // listeners and hit-tested between the touch and the frame that shows the mark); click still follows.
+      e.preventDefault();
       node.style.opacity = '0.8';
       tap.current(performance.timeOrigin + ts);
     };
