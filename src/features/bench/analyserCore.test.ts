@@ -32,7 +32,7 @@ describe('live analysis messages', () => {
   it('the reply gives the live screen what the main-thread analysis gives', () => {
     const full = analyse(doc);
     expect(full?.error).toBeNull();
-    const { message, transfer } = packReply(3, full, 12);
+    const { message, transfer } = packReply(3, liveOf(full), 12);
     const live = unpackReply(across(message, transfer));
     expect(live).toEqual(liveOf(full));
     expect(live?.result?.equivalencePoints.length).toBe(1);
@@ -43,7 +43,7 @@ describe('live analysis messages', () => {
   it('an engine refusal keeps its reason, and no document stays no analysis', () => {
     const refused = analyse({ ...doc, readings: [] });
     expect(refused?.result).toBeNull();
-    expect(unpackReply(across(packReply(1, refused, 0).message, []))).toEqual({ result: null, error: refused!.error });
+    expect(unpackReply(across(packReply(1, liveOf(refused), 0).message, []))).toEqual({ result: null, error: refused!.error });
     expect(unpackReply(packReply(2, null, 0).message)).toBeNull();
   });
 });

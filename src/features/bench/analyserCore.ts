@@ -72,17 +72,20 @@ export function unpackRequest(m: AnalyserRequest): RunDocumentInput {
   return { ...m.doc, readings } as RunDocumentInput;
 }
 
-export function packReply(id: number, a: Analysis | null, ms: number): { message: AnalyserReply; transfer: ArrayBuffer[] } {
-  const d = a?.result?.derivative ?? [];
+export function packReply(id: number, live: LiveAnalysis | null, ms: number): { message: AnalyserReply; transfer: ArrayBuffer[] } {
+  const d = live?.result?.derivative ?? [];
   const dV = new Float64Array(d.length);
   const dY = new Float64Array(d.length);
   d.forEach((p, i) => {
     dV[i] = p.volumeMl;
     dY[i] = p.dpHdV;
   });
-  const r = a?.result;
-  const est = r ? { equivalencePoints: r.equivalencePoints, halfEquivalence: r.halfEquivalence, pKa: r.pKa } : null;
-  return { message: { id, ms, error: a?.error ?? null, est, dV, dY, none: a === null }, transfer: [dV.buffer, dY.buffer] };
+  let est: AnalyserReply['est'] = null;
+  if (live?.result) {
+    const { derivative: _columns, ...rest } = live.result;
+    est = rest;
+  }
+  return { message: { id, ms, error: live?.error ?? null, est, dV, dY, none: live === null }, transfer: [dV.buffer, dY.buffer] };
 }
 
 export function unpackReply(m: AnalyserReply): LiveAnalysis | null {
