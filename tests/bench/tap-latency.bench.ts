@@ -22,6 +22,8 @@ import { CHROMIUM, CHROMIUM_ARGS } from '../browser/chromium';
 const PORT = 8300 + Math.floor(Math.random() * 500);
 const SEED = 2000;
 const SAMPLES = 40;
+// How long the finger rests on the glass in a tap (from memory: a quick tap lasts about 50–150 ms).
+const HOLD_MS = 80;
 const IN_MEMORY = process.env.TAP_BENCH_PROFILE === 'memory';
 const log = (...a: unknown[]) => console.error(...a);
 
@@ -140,23 +142,57 @@ async function main() {
         });
       }
       window.__arm = function (kind, n) {
-        window.__pending = { kind: kind, n: n };
+        window.__pending = { kind: kind, n: n, down: null };
         window.__result = new Promise(function (r) { window.__resolve = r; });
       };
+      // Mark acts on the press, Save on the release (a press that slides off is no tap): each is timed from the
+      // event that triggers it, as Interaction to Next Paint times each event of a tap from its own timestamp. Save's
+      // time from its press is kept too.
       window.addEventListener('pointerdown', function (e) {
         var p = window.__pending;
         if (!p) return;
+        p.down = e.timeStamp;
+        if (p.kind !== 'mark') return;
         window.__pending = null;
-        track(checksFor(p), e.timeStamp).then(window.__resolve);
+        track(checksFor(p), e.timeStamp).then(function (r) { window.__resolve(r); });
+      }, { capture: true });
+      window.addEventListener('pointerup', function (e) {
+        var p = window.__pending;
+        if (!p || p.down === null) return;
+        window.__pending = null;
+        var down = p.down;
+        track(checksFor(p), e.timeStamp).then(function (r) { window.__resolve(r.concat([r[0] + e.timeStamp - down])); });
       }, { capture: true });
     })()`);
 
     const mark = { shown: [] as number[], saved: [] as number[] };
-    const reading = { shown: [] as number[], saved: [] as number[] };
+    const reading = { shown: [] as number[], saved: [] as number[], fromPress: [] as number[] };
+    // A finger has no hover: the pointer is brought over the target first and the page left to settle (two frames
+    // and 50 ms), so the hover handling a mouse causes is not counted; the window opens at the press. The point is
+    // checked to hit the target (what Playwright's click would check), then pressed and released.
+    const pressAt = async (testId: string) => {
+      const box = await page.getByTestId(testId).boundingBox();
+      if (!box) throw new Error(`${testId} is not on screen`);
+      const x = box.x + box.width / 2;
+      const y = box.y + box.height / 2;
+      await page.mouse.move(x, y);
+      const hit = await page.evaluate(
+        ([id, px, py]) =>
+          new Promise<boolean>((resolve) =>
+            requestAnimationFrame(() => requestAnimationFrame(() => setTimeout(() => resolve(!!document.elementFromPoint(px, py)?.closest(`[data-testid="${id}"]`)), 50))),
+          ),
+        [testId, x, y] as const,
+      );
+      if (!hit) throw new Error(`the centre of ${testId} is covered`);
+      return { x, y };
+    };
     const measure = async (kind: 'mark' | 'reading', n: number, testId: string) => {
+      await pressAt(testId);
       await page.evaluate(([k, x]) => (window as any).__arm(k, x), [kind, n] as const);
-      await page.getByTestId(testId).click();
-      return (await page.evaluate(() => (window as any).__result)) as [number, number];
+      await page.mouse.down();
+      await page.waitForTimeout(HOLD_MS);
+      await page.mouse.up();
+      return (await page.evaluate(() => (window as any).__result)) as number[];
     };
     // TAP_BENCH_CPUPROFILE=file.cpuprofile records the page's CPU profile over the measured taps (open it in
     // Chromium's DevTools; dist/ has source maps) to see where a tap's time goes.
@@ -171,9 +207,10 @@ async function main() {
       mark.shown.push(ms);
       mark.saved.push(mc);
       for (const k of ['9', 'dot', '5']) await page.getByTestId(`key-${k}`).click();
-      const [rs, rc] = await measure('reading', SEED + i + 1, 'key-confirm');
+      const [rs, rc, rp] = await measure('reading', SEED + i + 1, 'key-confirm');
       reading.shown.push(rs);
       reading.saved.push(rc);
+      reading.fromPress.push(rp);
       await page.waitForTimeout(150);
     }
     if (profileOut) writeFileSync(profileOut, JSON.stringify((await cdp.send('Profiler.stop')).profile));
@@ -181,7 +218,7 @@ async function main() {
     if (errors.length) throw new Error(`page errors: ${errors.join('; ')}`);
     const summary = (xs: number[]) => `median ${median(xs).toFixed(1)}, p95 ${p95(xs).toFixed(1)}, max ${Math.max(...xs).toFixed(1)}`;
     log(`mark shown ms: ${summary(mark.shown)}; saved: ${summary(mark.saved)}`);
-    log(`reading shown ms: ${summary(reading.shown)}; saved: ${summary(reading.saved)}`);
+    log(`reading shown ms: ${summary(reading.shown)}; saved: ${summary(reading.saved)}; shown from the press: ${summary(reading.fromPress)}`);
     const where = `${SEED} readings, 4× CPU throttle${IN_MEMORY ? ', in-memory profile' : ''}`;
     const goal = (figure: string, v: number) => ({ figure, value: Math.round(v * 10) / 10, unit: 'ms', goal: '<= 50', meetsGoal: v <= 50 });
     const info = (figure: string, v: number, note: string) => ({ figure, value: Math.round(v * 10) / 10, unit: 'ms', note });
@@ -189,6 +226,7 @@ async function main() {
     console.log(JSON.stringify(info(`bench: tap Mark → mark saved, p95 (${where})`, p95(mark.saved), 'committed to the local database; no goal')));
     console.log(JSON.stringify(goal(`bench: tap Save → reading shown (saving), p95 (${where})`, p95(reading.shown))));
     console.log(JSON.stringify(info(`bench: tap Save → reading saved, p95 (${where})`, p95(reading.saved), 'committed to the local database; no goal')));
+    console.log(JSON.stringify(info(`bench: press on Save → reading shown (saving), p95 (${where})`, p95(reading.fromPress), `includes the ${HOLD_MS} ms the finger rests; no goal`)));
     console.log(JSON.stringify({ figure: `bench: seed ${SEED} readings through the store (bulk, one transaction)`, value: Math.round(seedS * 10) / 10, unit: 's', note: 'automation path; no goal' }));
   } finally {
     await context?.close();
