@@ -260,6 +260,12 @@ describe('bench timing and storage', () => {
     await page.keyboard.press('Enter');
     await page.getByTestId('active-mark-time').waitFor();
     await page.locator('[data-testid^="mark-saving-"]').waitFor({ state: 'detached' });
+    // The keypad's keys work from the keyboard too (Enter or Space on the focused key), once per press.
+    for (const [key, press] of [['7', 'Enter'], ['dot', ' '], ['2', 'Enter'], ['back', ' '], ['4', 'Enter']] as const) {
+      await page.getByTestId(`key-${key}`).focus();
+      await page.keyboard.press(press);
+    }
+    expect(await page.getByTestId('entry-display').getAttribute('aria-label')).toBe('Typed 7.4 mV'); // still in mV from above
     await page.getByTestId('discard-mark').click();
     await page.getByTestId('entry-idle').waitFor();
 

@@ -1,11 +1,12 @@
 // Our own numeric keypad for a gloved finger: big keys, the value shown large above them, one confirm key.
 // The keys stay mounted and memoised: a tap or a keystroke re-renders only what it changes.
 import { memo } from 'react';
-import { Pressable, StyleSheet, View } from 'react-native';
+import { StyleSheet, View } from 'react-native';
 import { colors, fonts, radius, space } from '../../theme/tokens';
 import { Text } from '../../ui';
 import { CONTAINED } from './contained';
 import type { Key } from './keypad';
+import { PadKey } from './PadKey';
 
 const ROWS: Key[][] = [
   ['7', '8', '9'],
@@ -49,19 +50,11 @@ const KeyRow = memo(function KeyRow({ keys, onKey }: { keys: readonly Key[]; onK
 
 const ConfirmKey = memo(function ConfirmKey({ label, disabled, onConfirm }: { label: string; disabled: boolean; onConfirm(): void }) {
   return (
-    <Pressable
-      accessibilityRole="button"
-      accessibilityLabel={label}
-      accessibilityState={{ disabled }}
-      disabled={disabled}
-      testID="key-confirm"
-      onPress={onConfirm}
-      style={({ pressed }) => [styles.key, styles.confirm, pressed && styles.pressed, disabled && styles.disabled]}
-    >
+    <PadKey accessibilityLabel={label} disabled={disabled} testID="key-confirm" onPress={onConfirm} style={[styles.key, styles.confirm, disabled && styles.disabled]} pressedStyle={styles.pressed}>
       <Text variant="heading" tone="inverse">
         {label}
       </Text>
-    </Pressable>
+    </PadKey>
   );
 });
 
@@ -69,15 +62,15 @@ const ConfirmKey = memo(function ConfirmKey({ label, disabled, onConfirm }: { la
 const KeyButton = memo(function KeyButton({ k, onKey }: { k: Key; onKey(key: Key): void }) {
   const sign = k === '-';
   return (
-    <Pressable
-      accessibilityRole="button"
+    <PadKey
       accessibilityLabel={k === 'back' ? 'Delete last digit' : k === '.' ? 'Decimal point' : sign ? 'Change sign' : k}
       testID={`key-${k === '.' ? 'dot' : sign ? 'sign' : k}`}
       onPress={() => onKey(k)}
-      style={({ pressed }) => [styles.key, (k === 'back' || sign) && styles.keyAlt, sign && styles.signKey, pressed && styles.pressed]}
+      style={[styles.key, (k === 'back' || sign) && styles.keyAlt, sign && styles.signKey]}
+      pressedStyle={styles.pressed}
     >
       <Text style={styles.keyText}>{k === 'back' ? '⌫' : sign ? '±' : k}</Text>
-    </Pressable>
+    </PadKey>
   );
 });
 
