@@ -1,4 +1,5 @@
-// The big elapsed-time display. It ticks on its own (10 Hz) so the rest of the bench does not re-render with it.
+// The big elapsed-time display (phone). It ticks on its own (10 Hz) so the rest of the bench does not re-render with
+// it. Web: ClockDisplay.web.tsx writes the tick into the element without a render.
 import { memo, useEffect, useState } from 'react';
 import { StyleSheet, View } from 'react-native';
 import { Text } from '../../ui';
