@@ -17,7 +17,11 @@ export function PadKey({ onPress, disabled = false, style, pressedStyle: _phoneO
     if (disabled || !node?.addEventListener) return;
     const release = () => node.style.removeProperty('opacity');
     const down = (e: PointerEvent) => {
-      if (e.button === 0 || e.pointerType !== 'mouse') node.style.opacity = '0.75';
+      if (e.button !== 0 && e.pointerType === 'mouse') return;
+      // A tap does not move the focus to the key (no mousedown: no focus change, dispatched through the page's
+      // listeners between the finger and the frame); Tab still reaches every key. The click still follows.
+      e.preventDefault();
+      node.style.opacity = '0.75';
     };
     // A click is a completed tap: pressed and released on the key (sliding off cancels it).
     const click = () => press.current();
@@ -41,7 +45,9 @@ export function PadKey({ onPress, disabled = false, style, pressedStyle: _phoneO
     };
   }, [disabled]);
   return (
-    <View ref={ref} accessibilityRole="button" accessibilityState={{ disabled }} focusable={!disabled} style={style} {...a11y}>
+    // Focusable even while disabled (announced as disabled, presses ignored): taking the tabindex away from a key
+    // that has the focus made the browser lay out the page there and then, inside the tap that disabled it.
+    <View ref={ref} accessibilityRole="button" accessibilityState={{ disabled }} focusable style={style} {...a11y}>
       {children}
     </View>
   );
