@@ -4,13 +4,14 @@
 // The panel and its keypad stay mounted while the clock runs (idle: nothing to type for), and the chips and keys
 // are memoised on stable callbacks, so a tap or a keystroke re-renders the few elements it changes.
 import { memo, useCallback, useMemo, useRef, useState } from 'react';
-import { Pressable, ScrollView, StyleSheet, View } from 'react-native';
+import { ScrollView, StyleSheet, View } from 'react-native';
 import type { MarkRow } from '../../local/types';
 import { colors, fonts, radius, space, touch } from '../../theme/tokens';
 import { Button, Segmented, Text } from '../../ui';
 import { formatClock } from './clock';
 import { CONTAINED } from './contained';
 import { Keypad } from './Keypad';
+import { PadKey } from './PadKey';
 import { MODE_RULES, parseEntry, pressKey, type EntryMode, type Key } from './keypad';
 import type { OpenMark } from './useBenchRun';
 
@@ -203,13 +204,13 @@ const DiscardButton = memo(function DiscardButton({ disabled, onPress }: { disab
 
 const MarkChip = memo(function MarkChip({ mark: m, index: i, on, onChoose }: { mark: OpenMark; index: number; on: boolean; onChoose(id: string): void }) {
   return (
-    <Pressable
-      accessibilityRole="button"
-      accessibilityState={{ selected: on }}
+    <PadKey
+      selected={on}
       accessibilityLabel={`${m.kind === 'checkpoint' ? 'Checkpoint' : 'Reading'} marked at ${formatClock(m.timeS)}${m.saving ? ', saving the mark' : ''}`}
       testID={`pending-${i}`}
       onPress={() => onChoose(m.id)}
       style={[styles.chip, on && styles.chipOn, m.kind === 'checkpoint' && styles.chipCheckpoint]}
+      pressedStyle={styles.chipPressed}
     >
       <Text variant="caption" tone={on ? 'inverse' : 'muted'}>
         {m.kind === 'checkpoint' ? 'Burette' : 'Reading'}
@@ -218,7 +219,7 @@ const MarkChip = memo(function MarkChip({ mark: m, index: i, on, onChoose }: { m
       <Text variant="label" tone={on ? 'inverse' : 'ink'} numeric>
         {formatClock(m.timeS)}
       </Text>
-    </Pressable>
+    </PadKey>
   );
 });
 
@@ -243,6 +244,7 @@ const styles = StyleSheet.create({
   },
   chipCheckpoint: { borderStyle: 'dashed' },
   chipOn: { backgroundColor: colors.ink, borderColor: colors.ink },
+  chipPressed: { opacity: 0.75 },
   // Fixed height and contained, like the slot above: the heading's text changes at every tap.
   head: { flexDirection: 'row', alignItems: 'center', justifyContent: 'space-between', gap: space.sm, height: 56, ...CONTAINED },
   headText: { flexShrink: 1 },

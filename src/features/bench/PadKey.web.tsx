@@ -1,4 +1,4 @@
-// A keypad key on the web: native click and key listeners instead of Pressable. Pressable keeps hover, focus and
+// A key of the entry panel on the web: native click and key listeners instead of Pressable. Pressable keeps hover, focus and
 // pressed state in React, so each tap on a key rendered it two or three more times (press in, press out, hover),
 // work that lands between the finger and the frame that shows the digit or the saved reading. The pressed look is
 // set on the element directly, as on the Mark target (TapTarget.web.tsx).
@@ -8,7 +8,7 @@ import type { PadKeyProps } from './PadKey';
 
 export type { PadKeyProps } from './PadKey';
 
-export function PadKey({ onPress, disabled = false, style, pressedStyle: _phoneOnly, children, ...a11y }: PadKeyProps) {
+export function PadKey({ onPress, disabled = false, selected, style, pressedStyle: _phoneOnly, children, ...a11y }: PadKeyProps) {
   const ref = useRef<View>(null);
   const press = useRef(onPress);
   press.current = onPress;
@@ -47,7 +47,7 @@ export function PadKey({ onPress, disabled = false, style, pressedStyle: _phoneO
   return (
     // Focusable even while disabled (announced as disabled, presses ignored): taking the tabindex away from a key
     // that has the focus made the browser lay out the page there and then, inside the tap that disabled it.
-    <View ref={ref} accessibilityRole="button" accessibilityState={{ disabled }} focusable style={style} {...a11y}>
+    <View ref={ref} accessibilityRole="button" accessibilityState={{ disabled, selected }} focusable style={style} {...a11y}>
       {children}
     </View>
   );
