@@ -34,7 +34,6 @@ export const ChartPlot = memo(function ChartPlot({ width, height, series, scales
   const rightColor = series.find((s) => s.axis === 'right')?.color ?? colors.derivative;
   const [x0, x1] = x.domain();
   const plotH = height - PAD.top - PAD.bottom;
-  const midY = PAD.top + plotH / 2;
   const paths = series.map((s) => {
     const y = s.axis === 'right' && yR ? yR : yL;
     const d = line<XY>()
@@ -53,32 +52,16 @@ export const ChartPlot = memo(function ChartPlot({ width, height, series, scales
           </ClipPath>
         </Defs>
       ) : null}
-      <Rect x={0} y={0} width={width} height={height} fill={colors.surface} />
-      {scales.yTicksL.map((t) => (
-        <G key={`yl${t.value}`}>
-          <Line x1={padL} x2={width - innerR} y1={yL(t.value)} y2={yL(t.value)} stroke={colors.grid} strokeWidth={1} />
-          <SvgText x={padL - 6} y={yL(t.value) + 4} fontSize={FONT} fill={colors.inkMuted} textAnchor="end" fontFamily={fonts.regular}>
-            {t.label}
-          </SvgText>
-        </G>
-      ))}
-      {yR
-        ? scales.yTicksR.map((t) => (
-            <SvgText key={`yr${t.value}`} x={width - innerR + 6} y={yR(t.value) + 4} fontSize={FONT} fill={rightColor} fontFamily={fonts.regular}>
-              {t.label}
-            </SvgText>
-          ))
-        : null}
-      {x.ticks(Math.max(2, Math.floor(width / 80))).map((t) => (
-        <G key={`x${t}`}>
-          <Line x1={x(t)} x2={x(t)} y1={PAD.top} y2={height - PAD.bottom} stroke={colors.grid} strokeWidth={1} />
-          <SvgText x={x(t)} y={height - PAD.bottom + 16} fontSize={FONT} fill={colors.inkMuted} textAnchor="middle" fontFamily={fonts.regular}>
-            {String(t)}
-          </SvgText>
-        </G>
-      ))}
-      <Line x1={padL} x2={width - innerR} y1={height - PAD.bottom} y2={height - PAD.bottom} stroke={colors.lineStrong} strokeWidth={1.5} />
-      <Line x1={padL} x2={padL} y1={PAD.top} y2={height - PAD.bottom} stroke={colors.lineStrong} strokeWidth={1.5} />
+      <ChartGrid
+        gridKey={gridKeyOf(width, height, scales, rightColor, xLabel, yLabel, yRightLabel)}
+        width={width}
+        height={height}
+        scales={scales}
+        rightColor={rightColor}
+        xLabel={xLabel}
+        yLabel={yLabel}
+        yRightLabel={yRightLabel}
+      />
       <G clipPath={clip ? `url(#${clipId})` : undefined}>
         {shownMarkers.map((m, i) =>
           m.x !== undefined ? (
@@ -104,17 +87,68 @@ export const ChartPlot = memo(function ChartPlot({ width, height, series, scales
           </G>
         ))}
       </G>
-      <SvgText x={(padL + width - innerR) / 2} y={height - 6} fontSize={FONT + 1} fill={colors.ink} textAnchor="middle" fontFamily={fonts.semibold}>
-        {xLabel}
-      </SvgText>
-      <SvgText x={12} y={midY} fontSize={FONT + 1} fill={colors.ink} textAnchor="middle" fontFamily={fonts.semibold} rotation={-90} origin={`12, ${midY}`}>
-        {yLabel}
-      </SvgText>
-      {yRightLabel ? (
-        <SvgText x={width - 10} y={midY} fontSize={FONT + 1} fill={rightColor} textAnchor="middle" fontFamily={fonts.semibold} rotation={90} origin={`${width - 10}, ${midY}`}>
-          {yRightLabel}
-        </SvgText>
-      ) : null}
     </Svg>
   );
 });
+
+/**
+ * What the grid draws depends on these alone. A new reading on the bench rarely moves the rounded-out domains, so
+ * the grid (some fifty SVG elements) is drawn again only when its ticks or size change, not with every reading.
+ */
+function gridKeyOf(width: number, height: number, scales: ChartScales, rightColor: string, xLabel: string, yLabel: string, yRightLabel?: string) {
+  const { x, yL, yR, padL, innerR } = scales;
+  return [width, height, padL, innerR, x.domain().join(), yL.domain().join(), yR ? yR.domain().join() : '', scales.yTicksL.map((t) => t.label).join(), scales.yTicksR.map((t) => t.label).join(), rightColor, xLabel, yLabel, yRightLabel ?? ''].join('|');
+}
+
+type ChartGridProps = { gridKey: string; width: number; height: number; scales: ChartScales; rightColor: string; xLabel: string; yLabel: string; yRightLabel?: string };
+
+/** Background, grid lines, ticks, axes and axis titles. */
+const ChartGrid = memo(
+  function ChartGrid({ width, height, scales, rightColor, xLabel, yLabel, yRightLabel }: ChartGridProps) {
+    const { x, yL, yR, innerR, padL } = scales;
+    const plotH = height - PAD.top - PAD.bottom;
+    const midY = PAD.top + plotH / 2;
+    return (
+      <G>
+          <Rect x={0} y={0} width={width} height={height} fill={colors.surface} />
+          {scales.yTicksL.map((t) => (
+            <G key={`yl${t.value}`}>
+              <Line x1={padL} x2={width - innerR} y1={yL(t.value)} y2={yL(t.value)} stroke={colors.grid} strokeWidth={1} />
+              <SvgText x={padL - 6} y={yL(t.value) + 4} fontSize={FONT} fill={colors.inkMuted} textAnchor="end" fontFamily={fonts.regular}>
+                {t.label}
+              </SvgText>
+            </G>
+          ))}
+          {yR
+            ? scales.yTicksR.map((t) => (
+                <SvgText key={`yr${t.value}`} x={width - innerR + 6} y={yR(t.value) + 4} fontSize={FONT} fill={rightColor} fontFamily={fonts.regular}>
+                  {t.label}
+                </SvgText>
+              ))
+            : null}
+          {x.ticks(Math.max(2, Math.floor(width / 80))).map((t) => (
+            <G key={`x${t}`}>
+              <Line x1={x(t)} x2={x(t)} y1={PAD.top} y2={height - PAD.bottom} stroke={colors.grid} strokeWidth={1} />
+              <SvgText x={x(t)} y={height - PAD.bottom + 16} fontSize={FONT} fill={colors.inkMuted} textAnchor="middle" fontFamily={fonts.regular}>
+                {String(t)}
+              </SvgText>
+            </G>
+          ))}
+          <Line x1={padL} x2={width - innerR} y1={height - PAD.bottom} y2={height - PAD.bottom} stroke={colors.lineStrong} strokeWidth={1.5} />
+          <Line x1={padL} x2={padL} y1={PAD.top} y2={height - PAD.bottom} stroke={colors.lineStrong} strokeWidth={1.5} />
+          <SvgText x={(padL + width - innerR) / 2} y={height - 6} fontSize={FONT + 1} fill={colors.ink} textAnchor="middle" fontFamily={fonts.semibold}>
+            {xLabel}
+          </SvgText>
+          <SvgText x={12} y={midY} fontSize={FONT + 1} fill={colors.ink} textAnchor="middle" fontFamily={fonts.semibold} rotation={-90} origin={`12, ${midY}`}>
+            {yLabel}
+          </SvgText>
+          {yRightLabel ? (
+            <SvgText x={width - 10} y={midY} fontSize={FONT + 1} fill={rightColor} textAnchor="middle" fontFamily={fonts.semibold} rotation={90} origin={`${width - 10}, ${midY}`}>
+              {yRightLabel}
+            </SvgText>
+          ) : null}
+      </G>
+    );
+  },
+  (a, b) => a.gridKey === b.gridKey,
+);
