@@ -1,14 +1,14 @@
 // The big elapsed-time display on the web. React renders the element once per clock change (start, pause…); the
 // 10 Hz tick writes the text into it directly. A React render per tick cost a render and a commit ten times a
 // second, and a tap arriving meanwhile waited for them. The box has a fixed height and is laid out on its own
-// (contain: strict), so a tick re-measures the clock, not the page. Phone: ClockDisplay.tsx.
+// (contain: strict, in a block parent: see contained.ts), so a tick re-measures the clock, not the page. Phone: ClockDisplay.tsx.
 import { memo, useLayoutEffect, useRef } from 'react';
 import { StyleSheet, View, type Text as RNText } from 'react-native';
 import { type as typeScale } from '../../theme/tokens';
 import { Text } from '../../ui';
 import { elapsedS, formatClock, type ClockEvent, type ClockStatus } from './clock';
 import { monoNow } from './clockSource';
-import { CONTAINED } from './contained';
+import { CONTAINED, ISLAND_PARENT } from './contained';
 
 export const ClockDisplay = memo(function ClockDisplay({ events, status }: { events: readonly ClockEvent[]; status: ClockStatus }) {
   const ref = useRef<RNText>(null);
@@ -30,8 +30,10 @@ export const ClockDisplay = memo(function ClockDisplay({ events, status }: { eve
     return () => clearInterval(id);
   }, [status, events]);
   return (
-    <View style={styles.wrap}>
-      <Text ref={ref} variant="clock" numeric align="center" testID="run-clock" accessibilityRole="timer" aria-live="off" />
+    <View style={ISLAND_PARENT}>
+      <View style={styles.wrap}>
+        <Text ref={ref} variant="clock" numeric align="center" testID="run-clock" accessibilityRole="timer" aria-live="off" />
+      </View>
     </View>
   );
 });

@@ -9,7 +9,7 @@ import type { MarkRow } from '../../local/types';
 import { colors, fonts, radius, space, touch } from '../../theme/tokens';
 import { Button, Segmented, Text } from '../../ui';
 import { formatClock } from './clock';
-import { CONTAINED } from './contained';
+import { CONTAINED, ISLAND_PARENT } from './contained';
 import { Keypad } from './Keypad';
 import { PadKey } from './PadKey';
 import { MODE_RULES, parseEntry, pressKey, type EntryMode, type Key } from './keypad';
@@ -122,16 +122,18 @@ export const EntryPanel = memo(function EntryPanel({ pending, hasElectrode, onRe
 
 const ChipRow = memo(function ChipRow({ open, activeId, onChoose }: { open: readonly OpenMark[]; activeId: string | null; onChoose(id: string): void }) {
   return (
-    // One box of fixed size for the chips or the idle note, laid out on its own: a tap changes what is inside it,
-    // never the height of the panel (nothing below moves or is re-measured).
-    <View style={styles.slot}>
-      {/* Mounted even when empty (hidden): the first mark of a series then adds one chip, not a scroll view. */}
-      <ScrollView horizontal style={!activeId && styles.hidden} contentContainerStyle={styles.chips} accessibilityLabel="Marks waiting for a value" testID="pending-marks">
-        {open.map((m, i) => (
-          <MarkChip key={m.id} mark={m} index={i} on={m.id === activeId} onChoose={onChoose} />
-        ))}
-      </ScrollView>
-      <IdleNote hidden={Boolean(activeId)} />
+    // One box of fixed size for the chips or the idle note, laid out on its own (contained, in a block parent: see
+    // contained.ts): a tap changes what is inside it, never the height of the panel (nothing else is re-measured).
+    <View style={ISLAND_PARENT}>
+      <View style={styles.slot}>
+        {/* Mounted even when empty (hidden): the first mark of a series then adds one chip, not a scroll view. */}
+        <ScrollView horizontal style={!activeId && styles.hidden} contentContainerStyle={styles.chips} accessibilityLabel="Marks waiting for a value" testID="pending-marks">
+          {open.map((m, i) => (
+            <MarkChip key={m.id} mark={m} index={i} on={m.id === activeId} onChoose={onChoose} />
+          ))}
+        </ScrollView>
+        <IdleNote hidden={Boolean(activeId)} />
+      </View>
     </View>
   );
 });
@@ -149,17 +151,19 @@ const IdleNote = memo(function IdleNote({ hidden }: { hidden: boolean }) {
 
 const EntryHead = memo(function EntryHead({ kind, timeS, readingMode, onMode }: { kind: MarkRow['kind'] | null; timeS: number | null; readingMode: 'pH' | 'mV'; onMode(k: 'pH' | 'mV'): void }) {
   return (
-    <View style={styles.head}>
-      <View style={styles.headText}>
-        <Text variant="label" tone="muted">
-          {kind ? `${kind === 'checkpoint' ? 'Burette reading' : 'Meter reading'} for the mark at` : 'No mark waiting'}
-        </Text>
-        {/* One element either way (a tap updates it rather than swapping it). */}
-        <Text variant="heading" numeric tone={timeS === null ? 'muted' : 'ink'} testID={timeS === null ? undefined : 'active-mark-time'}>
-          {timeS === null ? '--:--.-' : formatClock(timeS)}
-        </Text>
+    <View style={ISLAND_PARENT}>
+      <View style={styles.head}>
+        <View style={styles.headText}>
+          <Text variant="label" tone="muted">
+            {kind ? `${kind === 'checkpoint' ? 'Burette reading' : 'Meter reading'} for the mark at` : 'No mark waiting'}
+          </Text>
+          {/* One element either way (a tap updates it rather than swapping it). */}
+          <Text variant="heading" numeric tone={timeS === null ? 'muted' : 'ink'} testID={timeS === null ? undefined : 'active-mark-time'}>
+            {timeS === null ? '--:--.-' : formatClock(timeS)}
+          </Text>
+        </View>
+        <ModeSwitch hidden={kind === 'checkpoint'} value={readingMode} onChange={onMode} />
       </View>
-      <ModeSwitch hidden={kind === 'checkpoint'} value={readingMode} onChange={onMode} />
     </View>
   );
 });
@@ -176,13 +180,15 @@ const ModeSwitch = memo(function ModeSwitch({ hidden, value, onChange }: { hidde
 const EntryDisplay = memo(function EntryDisplay({ text, unit, error, mvWithoutCalibration }: { text: string; unit: string; error: string | null; mvWithoutCalibration: boolean }) {
   return (
     <>
-      <View style={[styles.display, error ? styles.displayError : null]} testID="entry-display" accessibilityLabel={`Typed ${text || 'nothing'} ${unit}`}>
-        <Text style={styles.displayText} numeric>
-          {text || ' '}
-        </Text>
-        <Text variant="heading" tone="muted">
-          {unit}
-        </Text>
+      <View style={ISLAND_PARENT}>
+        <View style={[styles.display, error ? styles.displayError : null]} testID="entry-display" accessibilityLabel={`Typed ${text || 'nothing'} ${unit}`}>
+          <Text style={styles.displayText} numeric>
+            {text || ' '}
+          </Text>
+          <Text variant="heading" tone="muted">
+            {unit}
+          </Text>
+        </View>
       </View>
       {mvWithoutCalibration ? (
         <Text variant="caption" tone="warn" testID="mv-warning">
