@@ -3,7 +3,7 @@
 // The typed text stays until it has been saved, so a failed write loses nothing.
 // The panel and its keypad stay mounted while the clock runs (idle: nothing to type for), and the chips and keys
 // are memoised on stable callbacks, so a tap or a keystroke re-renders the few elements it changes.
-import { memo, useCallback, useMemo, useRef, useState } from 'react';
+import { memo, useCallback, useDeferredValue, useMemo, useRef, useState } from 'react';
 import { ScrollView, StyleSheet, View } from 'react-native';
 import type { MarkRow } from '../../local/types';
 import { colors, fonts, radius, space, touch } from '../../theme/tokens';
@@ -106,13 +106,18 @@ export const EntryPanel = memo(function EntryPanel({ pending, hasElectrode, onRe
   }, []);
 
   const rule = MODE_RULES[mode];
+  // Whether Save and Discard are enabled follows a frame behind (a deferred render): a tap's own frame shows its
+  // mark (chip and heading) without re-rendering the keypad and the discard button. Digits typed meanwhile go to
+  // the current mark (the keys read it through `now`); Save and Discard take presses from the next frame on, and
+  // one that lands while they still look enabled after a save finds no mark and does nothing.
+  const idle = useDeferredValue(!active);
   return (
     <View style={styles.wrap} testID="entry-panel">
       <ChipRow open={open} activeId={active?.id ?? null} onChoose={choose} />
       <EntryHead kind={active?.kind ?? null} timeS={active?.timeS ?? null} readingMode={readingMode} onMode={onMode} />
       <EntryDisplay text={text} unit={rule.unit} error={error} mvWithoutCalibration={mode === 'mV' && !hasElectrode} />
-      <Keypad onKey={onKey} onConfirm={confirm} confirmLabel={`Save ${rule.unit}`} confirmDisabled={!active} allowSign={rule.negative} />
-      <DiscardButton disabled={!active} onPress={onDiscardActive} />
+      <Keypad onKey={onKey} onConfirm={confirm} confirmLabel={`Save ${rule.unit}`} confirmDisabled={idle} allowSign={rule.negative} />
+      <DiscardButton disabled={idle} onPress={onDiscardActive} />
     </View>
   );
 });
