@@ -141,6 +141,41 @@ describe('push', () => {
   });
 });
 
+describe("answer: 'exceptions'", () => {
+  it('lists only what was not simply accepted, in request order, and counts the rest', async () => {
+    const analyst = await w.member(w.labA.id, 'analyst');
+    const dev = fakeDevice();
+    const run = dev.change('run', runPayload(w.labA.id));
+    const r1 = dev.change('reading', { runId: run.id, timeS: 1, pH: 4.01 });
+    await push(w.deps, analyst, dev.batch([run, r1]));
+    const [{ version }] = await database.db.select({ version: runs.version }).from(runs).where(eq(runs.id, run.id));
+    const fresh = [2, 3, 4].map((t) => dev.change('reading', { runId: run.id, timeS: t, pH: 4 + t / 100 }));
+    const bad = dev.change('reading', { runId: run.id, timeS: 5, pH: 99 });
+    const edit = dev.change('run_meta_edit', { runId: run.id, field: 'notes', value: 'rinsed', baseVersion: version });
+    const changed = { ...r1, payload: { runId: run.id, timeS: 1, pH: 9.99 } };
+    const req = { ...dev.batch([fresh[0], bad, fresh[1], edit, fresh[2]]), answer: 'exceptions' as const };
+    const res = await push(w.deps, analyst, req);
+    expect(res.results.map((r) => [r.id, r.outcome])).toEqual([
+      [bad.id, 'rejected'],
+      [edit.id, 'accepted'],
+    ]);
+    expect(res.results[1].meta).toMatchObject({ winner: 'device', value: 'rinsed' });
+    expect(res.acceptedUnlisted).toBe(3);
+    expect(await database.db.select({ n: count() }).from(readings).where(inArray(readings.id, fresh.map((f) => f.id)))).toEqual([{ n: 3 }]);
+
+    // A replay of the same batch: nothing was accepted now, every change is listed.
+    const again = await push(w.deps, analyst, req);
+    expect(again.results.map((r) => r.outcome)).toEqual(['duplicate', 'rejected', 'duplicate', 'duplicate', 'duplicate']);
+    expect(again.acceptedUnlisted).toBe(0);
+    // A conflict is listed too; without the field the answer stays one result per change.
+    const clash = await push(w.deps, analyst, { ...dev.batch([changed]), answer: 'exceptions' });
+    expect(clash.results).toMatchObject([{ id: r1.id, outcome: 'conflict', status: 409 }]);
+    const full = await push(w.deps, analyst, dev.batch([dev.change('reading', { runId: run.id, timeS: 6, pH: 4.2 })]));
+    expect(full.results.map((r) => r.outcome)).toEqual(['accepted']);
+    expect(full.acceptedUnlisted).toBeUndefined();
+  });
+});
+
 describe('replays of one batch', () => {
   async function batchOf(n: number) {
     const analyst = await w.member(w.labA.id, 'analyst');

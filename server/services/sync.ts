@@ -457,7 +457,10 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       lastSyncAt: receivedAt,
       ...(lastLab ? { labId: lastLab } : {}),
     });
-    return { results, lastSeq, serverTime: receivedAt.toISOString(), clockOffsetMs, clockFlagged, mailed };
+    const rest = { lastSeq, serverTime: receivedAt.toISOString(), clockOffsetMs, clockFlagged, mailed };
+    if (req.answer !== 'exceptions') return { results, ...rest };
+    const listed = results.filter((r) => r.outcome !== 'accepted' || r.meta);
+    return { results: listed, acceptedUnlisted: results.length - listed.length, ...rest };
   }).then(({ mailed, ...response }) => {
     if (mailed) deps.mailNudge?.();
     return response;

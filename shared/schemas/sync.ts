@@ -152,6 +152,12 @@ export const pushRequestSchema = z
     /** Device wall clock when the request was sent: the server estimates the device's clock offset from it. */
     sentAt: deviceMs,
     changes: z.array(changeSchema).min(1).max(MAX_BATCH),
+    /**
+     * How the answer lists the changes: 'all' (the default) one result per change; 'exceptions' only the changes not
+     * simply accepted (any other outcome, or a metadata resolution), with the number of the others. A long offline
+     * run is mostly plain acceptances, and a result for each cost both sides more than the rest of the answer.
+     */
+    answer: z.enum(['all', 'exceptions']).optional(),
   })
   .superRefine((b, ctx) => {
     for (let i = 1; i < b.changes.length; i++) {
@@ -194,7 +200,14 @@ export const changeResultSchema = z.object({
 export type ChangeResult = z.infer<typeof changeResultSchema>;
 
 export const pushResponseSchema = z.object({
+  /** In request order: every change, or with `answer: 'exceptions'` only those not simply accepted. */
   results: z.array(changeResultSchema),
+  /**
+   * With `answer: 'exceptions'`: how many changes of the request were accepted (stored now, no metadata resolution)
+   * and are not listed. Results plus this count must cover the request exactly; a device that finds otherwise
+   * settles nothing from the answer.
+   */
+  acceptedUnlisted: z.number().int().nonnegative().optional(),
   /** Highest sequence number of this device the server has taken (committed with the batch). */
   lastSeq: z.number().int(),
   serverTime: z.iso.datetime(),
