@@ -49,6 +49,12 @@ describe('canonical payload hash', () => {
     );
     // eslint-disable-next-line no-sparse-arrays
     expect(canonicalJson([1, , 2])).toBe(firstCanonicalJson([1, , 2]));
+    // Key order by code units, for few keys and for many (sorted two ways), with capitals, accents and astral keys.
+    const odd = { é: 1, Z: 2, a: 3, '\u{1F600}': 4, '': 5, '\uFFFF': 6, aa: 7, A: 8 };
+    expect(canonicalJson(odd)).toBe(firstCanonicalJson(odd));
+    const many = Object.fromEntries(Array.from({ length: 40 }, (_, i) => [`k${(i * 7919) % 40}${i % 3 ? 'x' : ''}`, i]));
+    expect(canonicalJson(many)).toBe(firstCanonicalJson(many));
+    expect(canonicalJson({ ...odd, ...many })).toBe(firstCanonicalJson({ ...odd, ...many }));
   });
 });
 

@@ -109,8 +109,15 @@ export type EntityKind = z.infer<typeof entityKindSchema>;
 /** True when a string (or any key or string inside) holds U+0000, which PostgreSQL cannot store in text or jsonb. */
 export function holdsNul(v: unknown): boolean {
   if (typeof v === 'string') return v.includes('\u0000');
-  if (Array.isArray(v)) return v.some(holdsNul);
-  if (v && typeof v === 'object') return Object.entries(v).some(([k, x]) => k.includes('\u0000') || holdsNul(x));
+  // Loops, not entries()/some(): every pushed payload passes here, and the pairs were garbage to collect.
+  if (Array.isArray(v)) {
+    for (let i = 0; i < v.length; i++) if (holdsNul(v[i])) return true;
+    return false;
+  }
+  if (v && typeof v === 'object') {
+    const o = v as Record<string, unknown>;
+    for (const k in o) if (Object.hasOwn(o, k) && (k.includes('\u0000') || holdsNul(o[k]))) return true;
+  }
   return false;
 }
 /** A payload holding U+0000 is rejected like any bad payload: that change only, not the whole batch. */
