@@ -93,6 +93,22 @@ describe('sync over HTTP', () => {
     expect(res.body.results[0]).toMatchObject({ outcome: 'rejected', status: 422 });
   });
 
+  it("answer: 'exceptions' answers plain acceptances with a count; an unknown answer form is a 400", async () => {
+    const runId = v7();
+    const changes = [
+      { id: runId, kind: 'run', seq: 1, recordedAt: Date.now(), payload: { labId: fx.labA.id, sampleName: 'compact answer demo run' } },
+      { id: v7(), kind: 'reading', seq: 2, recordedAt: Date.now(), payload: { runId, timeS: 1, pH: 4.1 } },
+      { id: v7(), kind: 'reading', seq: 3, recordedAt: Date.now(), payload: { runId, timeS: 2, pH: 40 } },
+    ];
+    const body = { deviceId: v7(), sentAt: Date.now(), changes, answer: 'exceptions' };
+    const res = await fx.api().post('/api/sync/push').set(await auth('analyst')).send(body);
+    expect(res.status).toBe(200);
+    expect(res.body.acceptedUnlisted).toBe(2);
+    expect(res.body.results).toMatchObject([{ id: changes[2].id, seq: 3, outcome: 'rejected', status: 422 }]);
+    const odd = await fx.api().post('/api/sync/push').set(await auth('analyst')).send({ ...body, answer: 'some' });
+    expect(odd.status).toBe(400);
+  });
+
   it('live follow: a colleague (viewer) sees readings pushed after they opened the stream', async () => {
     const { runId, deviceId, seq, ids: before } = await pushRun(3);
     const res = await fetch(`${base}/api/runs/${runId}/live`, { headers: { ...(await auth('viewer')), accept: 'text/event-stream' } });

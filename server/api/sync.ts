@@ -13,6 +13,8 @@ export const syncRoutes = [
     path: '/sync/push',
     access: 'signedIn',
     body: pushRequestSchema,
+    // Writes records, runs and the device row only: never a session, account or membership.
+    keepsAccess: true,
     summary: 'Push a batch of device changes; answers per change (accepted, duplicate, conflict, rejected, out_of_order).',
     handler: ({ app, caller, body }) => sync.push(app, caller!, body),
   }),

@@ -1,5 +1,6 @@
 import { eq, sql } from 'drizzle-orm';
 import { SignJWT, UnsecuredJWT } from 'jose';
+import { v7 } from 'uuid';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { labs, memberships, sessions, users } from '../../db/schema';
 import { serverContextOf } from '../app';
@@ -155,6 +156,17 @@ describe('the access check is cached per session; a change ends access at the ne
     await me(s.accessToken).expect(200);
     await fx.database.query(`select pg_notify('halfmark_auth', $1)`, [fx.people.viewer.id]);
     await eventually(() => me(s.accessToken).expect(401));
+  });
+
+  it('a sync push keeps the cached access checks; another write drops them', async () => {
+    const s = await cachedSession(fx.people.analyst.id);
+    expect(cache().size).toBeGreaterThan(0);
+    const push = (changes: unknown[]) => fx.api().post('/api/sync/push').set('authorization', bearer(s.accessToken)).send({ deviceId: v7(), sentAt: Date.now(), changes });
+    const run = { id: v7(), kind: 'run', seq: 1, recordedAt: Date.now(), payload: { labId: fx.labA.id, sampleName: 'cache demo run' } };
+    expect((await push([run]).expect(200)).body.results[0].outcome).toBe('accepted');
+    expect(cache().size).toBeGreaterThan(0);
+    await fx.api().post('/api/auth/logout').set('cookie', s.refreshCookie).expect(204);
+    expect(cache().size).toBe(0);
   });
 
   it('sign-out through this instance ends access on the very next request', async () => {

@@ -56,6 +56,12 @@ export interface RouteDef<B = unknown, Q = unknown> {
   status?: number;
   /** Mounted only outside production. */
   devOnly?: boolean;
+  /**
+   * A write that can never end a session or change an account or a membership: the cached access checks outlive
+   * it (a device's pushes come in a row; each would otherwise read its session again). Lab lists are dropped as
+   * after any write.
+   */
+  keepsAccess?: boolean;
   summary: string;
   /** Returns the JSON body, or sends the response itself via ctx.res. */
   handler: (ctx: RouteContext<B, Q>) => unknown;
@@ -165,11 +171,11 @@ export function mountRoutes(router: Router, defs: RouteDef[], app: ServerContext
         // A write may have committed (even if the handler failed after it): this instance's cached answers must not
         // outlive it, though the notification of the commit may reach its listener a moment later. The lists of the
         // route's lab (of every lab when the route names none); every access check, as a write may end a session or
-        // change a membership. Other instances hear of it by NOTIFY.
+        // change a membership (unless the route says it never does: keepsAccess). Other instances hear of it by NOTIFY.
         if (def.method !== 'get') {
           if (lab) app.labCache.invalidate(lab.id);
           else app.labCache.invalidateAll();
-          app.sessionCache.invalidateAll();
+          if (!def.keepsAccess) app.sessionCache.invalidateAll();
         }
       }
       if (res.headersSent) return;

@@ -157,18 +157,18 @@ export async function insertReadingsIgnoringExisting(tx: Executor, rows: Reading
   let ids = '';
   for (const [name, type, get] of readingColumns(() => new Date().toISOString())) {
     const head = get(rows[0]);
-    let literal = `{${element(head)}`;
+    // Most columns of a push are the same on every row (run, lab, kind, receipt time…): found so first, before any
+    // array literal is written, they cost one comparison per row and no text.
     let uniform = name !== 'id';
-    for (let i = 1; i < rows.length; i++) {
-      const v = get(rows[i]);
-      if (uniform && v !== head) uniform = false;
-      literal += `,${element(v)}`;
-    }
-    literal += '}';
-    if (name === 'id') ids = literal;
+    for (let i = 1; uniform && i < rows.length; i++) uniform = get(rows[i]) === head;
     if (uniform) {
       selected.push(sql`${head}::${sql.raw(type)}`);
     } else {
+      // Joined once (a string built by += is a chain of pieces to walk and collect).
+      const parts = new Array<string>(rows.length);
+      for (let i = 0; i < rows.length; i++) parts[i] = element(get(rows[i]));
+      const literal = `{${parts.join(',')}}`;
+      if (name === 'id') ids = literal;
       arrays.push(sql`${literal}::${sql.raw(type)}[]`);
       names.push(name);
       selected.push(sql.raw(`u.${name}`));

@@ -49,6 +49,12 @@ describe('canonical payload hash', () => {
     );
     // eslint-disable-next-line no-sparse-arrays
     expect(canonicalJson([1, , 2])).toBe(firstCanonicalJson([1, , 2]));
+    // Key order by code units, for few keys and for many (sorted two ways), with capitals, accents and astral keys.
+    const odd = { é: 1, Z: 2, a: 3, '\u{1F600}': 4, '': 5, '\uFFFF': 6, aa: 7, A: 8 };
+    expect(canonicalJson(odd)).toBe(firstCanonicalJson(odd));
+    const many = Object.fromEntries(Array.from({ length: 40 }, (_, i) => [`k${(i * 7919) % 40}${i % 3 ? 'x' : ''}`, i]));
+    expect(canonicalJson(many)).toBe(firstCanonicalJson(many));
+    expect(canonicalJson({ ...odd, ...many })).toBe(firstCanonicalJson({ ...odd, ...many }));
   });
 });
 
@@ -138,6 +144,41 @@ describe('push', () => {
     const cps = await database.db.select().from(checkpoints).where(eq(checkpoints.runId, run.id));
     expect(cps.find((x) => x.id === back.id)).toMatchObject({ buretteMl: null, replacesId: c.id });
     expect(cps.find((x) => x.id === c.id)?.buretteMl).toBe(12.3);
+  });
+});
+
+describe("answer: 'exceptions'", () => {
+  it('lists only what was not simply accepted, in request order, and counts the rest', async () => {
+    const analyst = await w.member(w.labA.id, 'analyst');
+    const dev = fakeDevice();
+    const run = dev.change('run', runPayload(w.labA.id));
+    const r1 = dev.change('reading', { runId: run.id, timeS: 1, pH: 4.01 });
+    await push(w.deps, analyst, dev.batch([run, r1]));
+    const [{ version }] = await database.db.select({ version: runs.version }).from(runs).where(eq(runs.id, run.id));
+    const fresh = [2, 3, 4].map((t) => dev.change('reading', { runId: run.id, timeS: t, pH: 4 + t / 100 }));
+    const bad = dev.change('reading', { runId: run.id, timeS: 5, pH: 99 });
+    const edit = dev.change('run_meta_edit', { runId: run.id, field: 'notes', value: 'rinsed', baseVersion: version });
+    const changed = { ...r1, payload: { runId: run.id, timeS: 1, pH: 9.99 } };
+    const req = { ...dev.batch([fresh[0], bad, fresh[1], edit, fresh[2]]), answer: 'exceptions' as const };
+    const res = await push(w.deps, analyst, req);
+    expect(res.results.map((r) => [r.id, r.outcome])).toEqual([
+      [bad.id, 'rejected'],
+      [edit.id, 'accepted'],
+    ]);
+    expect(res.results[1].meta).toMatchObject({ winner: 'device', value: 'rinsed' });
+    expect(res.acceptedUnlisted).toBe(3);
+    expect(await database.db.select({ n: count() }).from(readings).where(inArray(readings.id, fresh.map((f) => f.id)))).toEqual([{ n: 3 }]);
+
+    // A replay of the same batch: nothing was accepted now, every change is listed.
+    const again = await push(w.deps, analyst, req);
+    expect(again.results.map((r) => r.outcome)).toEqual(['duplicate', 'rejected', 'duplicate', 'duplicate', 'duplicate']);
+    expect(again.acceptedUnlisted).toBe(0);
+    // A conflict is listed too; without the field the answer stays one result per change.
+    const clash = await push(w.deps, analyst, { ...dev.batch([changed]), answer: 'exceptions' });
+    expect(clash.results).toMatchObject([{ id: r1.id, outcome: 'conflict', status: 409 }]);
+    const full = await push(w.deps, analyst, dev.batch([dev.change('reading', { runId: run.id, timeS: 6, pH: 4.2 })]));
+    expect(full.results.map((r) => r.outcome)).toEqual(['accepted']);
+    expect(full.acceptedUnlisted).toBeUndefined();
   });
 });
 

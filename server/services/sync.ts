@@ -69,7 +69,18 @@ export function canonicalJson(value: unknown): string {
     return `${out}]`;
   }
   const obj = value as Record<string, unknown>;
-  const keys = Object.keys(obj).sort();
+  const keys = Object.keys(obj);
+  // A payload has a handful of keys: sorted in place by insertion, as Array.prototype.sort allocates a work array on
+  // every call (garbage from every change of a push). The order is the same (code units, as sort() compares).
+  if (keys.length > 16) keys.sort();
+  else {
+    for (let i = 1; i < keys.length; i++) {
+      const k = keys[i];
+      let j = i - 1;
+      for (; j >= 0 && keys[j] > k; j--) keys[j + 1] = keys[j];
+      keys[j + 1] = k;
+    }
+  }
   let out = '{';
   for (const k of keys) {
     const v = obj[k];
@@ -100,14 +111,12 @@ interface Item {
   replayOnly: boolean;
 }
 
-const result = (c: Change, outcome: ChangeResult['outcome'], status: number, reason?: string, meta?: MetaResolution): ChangeResult => ({
-  id: c.id,
-  seq: c.seq,
-  outcome,
-  status,
-  ...(reason ? { reason } : {}),
-  ...(meta ? { meta } : {}),
-});
+function result(c: Change, outcome: ChangeResult['outcome'], status: number, reason?: string, meta?: MetaResolution): ChangeResult {
+  const r: ChangeResult = { id: c.id, seq: c.seq, outcome, status };
+  if (reason) r.reason = reason;
+  if (meta) r.meta = meta;
+  return r;
+}
 
 function zodReason(err: z.ZodError): string {
   return err.issues.map((i) => (i.path.length ? `${i.path.join('.')}: ${i.message}` : i.message)).join('; ');
@@ -457,7 +466,10 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       lastSyncAt: receivedAt,
       ...(lastLab ? { labId: lastLab } : {}),
     });
-    return { results, lastSeq, serverTime: receivedAt.toISOString(), clockOffsetMs, clockFlagged, mailed };
+    const rest = { lastSeq, serverTime: receivedAt.toISOString(), clockOffsetMs, clockFlagged, mailed };
+    if (req.answer !== 'exceptions') return { results, ...rest };
+    const listed = results.filter((r) => r.outcome !== 'accepted' || r.meta);
+    return { results: listed, acceptedUnlisted: results.length - listed.length, ...rest };
   }).then(({ mailed, ...response }) => {
     if (mailed) deps.mailNudge?.();
     return response;

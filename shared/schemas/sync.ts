@@ -109,8 +109,15 @@ export type EntityKind = z.infer<typeof entityKindSchema>;
 /** True when a string (or any key or string inside) holds U+0000, which PostgreSQL cannot store in text or jsonb. */
 export function holdsNul(v: unknown): boolean {
   if (typeof v === 'string') return v.includes('\u0000');
-  if (Array.isArray(v)) return v.some(holdsNul);
-  if (v && typeof v === 'object') return Object.entries(v).some(([k, x]) => k.includes('\u0000') || holdsNul(x));
+  // Loops, not entries()/some(): every pushed payload passes here, and the pairs were garbage to collect.
+  if (Array.isArray(v)) {
+    for (let i = 0; i < v.length; i++) if (holdsNul(v[i])) return true;
+    return false;
+  }
+  if (v && typeof v === 'object') {
+    const o = v as Record<string, unknown>;
+    for (const k in o) if (Object.hasOwn(o, k) && (k.includes('\u0000') || holdsNul(o[k]))) return true;
+  }
   return false;
 }
 /** A payload holding U+0000 is rejected like any bad payload: that change only, not the whole batch. */
@@ -152,6 +159,12 @@ export const pushRequestSchema = z
     /** Device wall clock when the request was sent: the server estimates the device's clock offset from it. */
     sentAt: deviceMs,
     changes: z.array(changeSchema).min(1).max(MAX_BATCH),
+    /**
+     * How the answer lists the changes: 'all' (the default) one result per change; 'exceptions' only the changes not
+     * simply accepted (any other outcome, or a metadata resolution), with the number of the others. A long offline
+     * run is mostly plain acceptances, and a result for each cost both sides more than the rest of the answer.
+     */
+    answer: z.enum(['all', 'exceptions']).optional(),
   })
   .superRefine((b, ctx) => {
     for (let i = 1; i < b.changes.length; i++) {
@@ -194,7 +207,14 @@ export const changeResultSchema = z.object({
 export type ChangeResult = z.infer<typeof changeResultSchema>;
 
 export const pushResponseSchema = z.object({
+  /** In request order: every change, or with `answer: 'exceptions'` only those not simply accepted. */
   results: z.array(changeResultSchema),
+  /**
+   * With `answer: 'exceptions'`: how many changes of the request were accepted (stored now, no metadata resolution)
+   * and are not listed. Results plus this count must cover the request exactly; a device that finds otherwise
+   * settles nothing from the answer.
+   */
+  acceptedUnlisted: z.number().int().nonnegative().optional(),
   /** Highest sequence number of this device the server has taken (committed with the batch). */
   lastSeq: z.number().int(),
   serverTime: z.iso.datetime(),

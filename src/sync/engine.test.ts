@@ -7,18 +7,30 @@ import { MemoryDevice } from './memoryStore';
 const LAB = '0190a3b0-0000-7000-8000-000000000001';
 
 /** A server stand-in that accepts everything, except payloads it is told to reject. */
-function fakeServer(opts: { reject?: (c: PushRequest['changes'][number]) => string | null; fail?: () => TransportError | null } = {}) {
+function fakeServer(
+  opts: {
+    reject?: (c: PushRequest['changes'][number]) => string | null;
+    fail?: () => TransportError | null;
+    /** Answer every change (as a server does without `answer: 'exceptions'`) instead of only the exceptions. */
+    full?: boolean;
+    /** Spoils the answer after it is made (a server bug or a mixed-up reply). */
+    spoil?: (res: PushResponse) => PushResponse;
+  } = {},
+) {
   const pushes: PushRequest[] = [];
   const t: SyncTransport = {
     async push(req) {
       const err = opts.fail?.();
       if (err) throw err;
       pushes.push(req);
-      const results = req.changes.map((c) => {
+      const all = req.changes.map((c) => {
         const why = opts.reject?.(c) ?? null;
         return why ? { id: c.id, seq: c.seq, outcome: 'rejected' as const, status: 422, reason: why } : { id: c.id, seq: c.seq, outcome: 'accepted' as const, status: 201 };
       });
-      return { results, lastSeq: req.changes.at(-1)!.seq, serverTime: new Date().toISOString(), clockOffsetMs: 0, clockFlagged: false } satisfies PushResponse;
+      const compact = !opts.full && req.answer === 'exceptions';
+      const results = compact ? all.filter((r) => r.outcome !== 'accepted') : all;
+      const res = { results, ...(compact ? { acceptedUnlisted: all.length - results.length } : {}), lastSeq: req.changes.at(-1)!.seq, serverTime: new Date().toISOString(), clockOffsetMs: 0, clockFlagged: false } satisfies PushResponse;
+      return opts.spoil ? opts.spoil(res) : res;
     },
     async pull(cursor) {
       return { changes: [], cursor, more: false };
@@ -59,6 +71,42 @@ describe('sync engine', () => {
     expect(dev.outbox.filter((o) => o.state === 'acked').length).toBe(dev.outbox.length - 1);
     expect(e.status).toMatchObject({ state: 'synced', rejected: 1, waiting: 0 });
     expect(describeSync(e.status, true)).toEqual({ label: 'All sent · 1 rejected', tone: 'danger' });
+  });
+
+  it("asks for the exceptions only, and takes a full answer (one result per change) just as well", async () => {
+    for (const full of [false, true]) {
+      const dev = new MemoryDevice('u1');
+      const run = dev.createRun(LAB);
+      for (let i = 0; i < 5; i++) dev.addReading(run.id, i, 4 + i / 10);
+      const bad = dev.addReading(run.id, 9, 4.5);
+      const { t, pushes } = fakeServer({ full, reject: (c) => (c.id === bad.id ? 'pH out of range' : null) });
+      await new SyncEngine(dev, t, noTimers).sync();
+      expect(pushes[0].answer).toBe('exceptions');
+      expect(dev.outbox.find((o) => o.recordId === bad.id)).toMatchObject({ state: 'rejected', lastError: 'pH out of range' });
+      expect(dev.outbox.filter((o) => o.state === 'acked').length).toBe(dev.outbox.length - 1);
+    }
+  });
+
+  it('settles nothing from an answer that does not cover exactly the changes sent', async () => {
+    const spoilers: [string, (res: PushResponse) => PushResponse][] = [
+      ['one change too few counted', (r) => ({ ...r, acceptedUnlisted: r.acceptedUnlisted! - 1 })],
+      ['one too many', (r) => ({ ...r, acceptedUnlisted: r.acceptedUnlisted! + 1 })],
+      ['a result for a change not sent', (r) => ({ ...r, results: [{ ...r.results[0], id: '0190a3b0-0000-7000-8000-0000000000ff' }] })],
+      ['the same change listed twice', (r) => ({ ...r, results: [r.results[0], r.results[0]], acceptedUnlisted: r.acceptedUnlisted! - 1 })],
+      ['a full answer with a result missing', (r) => ({ ...r, results: r.results.slice(1), acceptedUnlisted: undefined })],
+    ];
+    for (const [what, spoil] of spoilers) {
+      const dev = new MemoryDevice('u1');
+      const run = dev.createRun(LAB);
+      for (let i = 0; i < 4; i++) dev.addReading(run.id, i, 4);
+      const rejectFirst = (c: PushRequest['changes'][number]) => (c.kind === 'reading' && c.payload && (c.payload as { timeS: number }).timeS === 0 ? 'no' : null);
+      const { t, pushes } = fakeServer({ reject: rejectFirst, spoil, full: what.startsWith('a full') });
+      const e = new SyncEngine(dev, t, noTimers);
+      await e.sync();
+      expect(pushes.length, what).toBe(1);
+      expect(dev.outbox.filter((o) => o.entity !== 'mark').every((o) => o.state === 'pending'), what).toBe(true);
+      expect(e.status.state, what).toBe('error');
+    }
   });
 
   it('a run with no lab waits (and everything after it), and says why', async () => {

@@ -81,6 +81,24 @@ export interface EngineOptions {
 
 const FAILED: ChangeResult['outcome'][] = ['rejected', 'conflict', 'out_of_order'];
 
+/**
+ * True when a push's answer speaks of exactly the changes sent: each listed result names a change of the request
+ * (id and seq) once, and the listed plus those counted as accepted are all of them. Anything else (an answer cut
+ * short, or meant for another request) settles nothing: the rows stay queued and replays are idempotent.
+ */
+export function answerCovers(res: PushResponse, changes: readonly Change[]): boolean {
+  if (res.results.length + (res.acceptedUnlisted ?? 0) !== changes.length) return false;
+  if (!res.results.length) return true;
+  const sent = new Map<number, string>();
+  for (const c of changes) sent.set(c.seq, c.id);
+  const seen = new Set<number>();
+  for (const r of res.results) {
+    if (sent.get(r.seq) !== r.id || seen.has(r.seq)) return false;
+    seen.add(r.seq);
+  }
+  return true;
+}
+
 export class SyncEngine {
   private current: Promise<void> | null = null;
   private again = false;
@@ -240,9 +258,11 @@ export class SyncEngine {
         if (waitReason || !local.length) return waitReason;
         continue;
       }
-      const res = await this.transport.push({ deviceId: this.store.deviceId, sentAt: Math.max(0, Math.round(this.o.now())), changes });
+      // Only the exceptions come back; every other change is counted as accepted (checked against what was sent).
+      const res = await this.transport.push({ deviceId: this.store.deviceId, sentAt: Math.max(0, Math.round(this.o.now())), changes, answer: 'exceptions' });
+      if (!answerCovers(res, changes)) throw new TransportError('server', "The server's answer does not match the changes sent; they stay queued and go again.");
       this.set({ clockOffsetMs: res.clockOffsetMs, clockFlagged: res.clockFlagged });
-      // Results by outbox row (a row's changes share its seq ÷ SLOTS); most rows have exactly one.
+      // Results by outbox row (a row's changes share its seq ÷ SLOTS); a row with none was accepted whole.
       const byRow = new Map<number, ChangeResult[]>();
       for (const r of res.results) {
         const seq = Math.floor(r.seq / SLOTS);
@@ -253,7 +273,11 @@ export class SyncEngine {
       let runOf: Map<string, Change> | null = null;
       const settled: Settlement[] = local;
       for (const row of send) {
-        const results = byRow.get(row.seq) ?? [];
+        const results = byRow.get(row.seq);
+        if (!results) {
+          settled.push({ seq: row.seq, state: 'acked' });
+          continue;
+        }
         const failed = results.filter((r) => FAILED.includes(r.outcome));
         const withMeta = results.filter((r) => r.meta);
         runOf ??= withMeta.length ? new Map(changes.map((c) => [c.id, c])) : null;
