@@ -18,6 +18,7 @@ import { EntryPanel, type EntryPanelProps } from './EntryPanel';
 import { parseEntry } from './keypad';
 import { LocalGate, StorageBadge } from './LocalGate';
 import { MarkTargets } from './MarkTargets';
+import { useOnScreen } from './onScreen';
 import { cueIntervalS, type PlanResult } from './plan';
 import { PlanCard } from './PlanCard';
 import { ReadingsTable, type ReadingsTableProps } from './ReadingsTable';
@@ -188,10 +189,20 @@ const LiveResults = memo(function LiveResults({ rs, setup, refills, deliveryMap,
   const deferredReadings = useDeferredValue(readings);
   const built = useRunDocument(rs, setup, refills);
   const analysis = useLiveAnalysis(built?.doc ?? null, live);
+  // The curve is drawn again only while it is on screen (on a phone it is below the keypad while one types): a new
+  // reading then costs no redraw between taps, and scrolling to it draws the latest at once.
+  const [chartBox, setChartBox] = useState<View | null>(null);
+  const onScreen = useOnScreen(chartBox);
+  const drawn = useRef({ readings: deferredReadings, result: analysis?.result ?? null });
+  if (onScreen) drawn.current = { readings: deferredReadings, result: analysis?.result ?? null };
   return (
     <>
       {live ? <LiveEstimates count={readings.length} analysis={analysis} /> : null}
-      {showChart ? <LiveChart readings={deferredReadings} deliveryMap={deliveryMap} plan={plan} result={analysis?.result ?? null} height={height} /> : null}
+      {showChart ? (
+        <View ref={setChartBox}>
+          <LiveChart readings={drawn.current.readings} deliveryMap={deliveryMap} plan={plan} result={drawn.current.result} height={height} />
+        </View>
+      ) : null}
     </>
   );
 });
