@@ -5,6 +5,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { simulateCurve } from '../../shared/engine';
+import { touch } from '../../src/theme/tokens';
 import { clockSeconds, createRun, readingCount, settledReadingCount, shotScrolled, tap, typeOnKeypad, type SetupValues } from './bench-helpers';
 import { closeBrowser, DESKTOP, openApp, PHONE, shot } from './harness';
 
@@ -82,6 +83,16 @@ for (const [label, viewport] of [
       // The live estimate has caught up with the readings.
       await page.waitForFunction(() => document.querySelector('[data-testid="estimate-ve"]')?.textContent?.includes('mL'));
       await shotScrolled(page, `bench-live-full-${label}`, shot);
+      // A full table keeps one height (the newest 25 rows, in a box of 25 rows), so a value being saved does not
+      // move what is below it; "show all" lists every row and lets the table grow.
+      const stored = '[data-testid^="reading-row-"], [data-testid^="checkpoint-row-"]';
+      const pinned = page.getByTestId('rows-pinned');
+      expect((await pinned.boundingBox())?.height).toBe(25 * touch.min);
+      expect(await pinned.locator(stored).count()).toBe(25);
+      expect(await page.getByTestId(`reading-row-${times.length}`).isVisible()).toBe(true);
+      await page.getByTestId('show-all-rows').click();
+      await pinned.waitFor({ state: 'detached' });
+      expect(await page.getByTestId('readings-table').locator(stored).count()).toBe(times.length + checkpoints);
 
       await page.getByTestId('finish-run').click();
       await page.getByTestId('confirm-finish').click();

@@ -7,7 +7,7 @@ import type { CheckpointRow, ReadingRow } from '../../local/types';
 import { colors, radius, space, touch } from '../../theme/tokens';
 import { Button, Field, Text } from '../../ui';
 import { formatClock } from './clock';
-import { CONTAINED } from './contained';
+import { CONTAINED, ISLAND_PARENT } from './contained';
 import type { Effective } from './effective';
 import { numberOrUndefined } from './setup';
 import type { UnsavedValue } from './useBenchRun';
@@ -29,11 +29,26 @@ const NO_UNSAVED: readonly UnsavedValue[] = [];
 
 export const ReadingsTable = memo(function ReadingsTable({ readings, checkpoints, volumeAt, limit = 25, unsaved = NO_UNSAVED, onCorrectReading, onCorrectCheckpoint }: ReadingsTableProps) {
   const total = readings.length + checkpoints.length;
+  const [showAll, setShowAll] = useState(false);
+  const [editing, setEditing] = useState<string | null>(null);
+  const toggle = useCallback((id: string) => setEditing((e) => (e === id ? null : id)), []);
+  const close = useCallback(() => setEditing(null), []);
+  const onShowAll = useCallback(() => setShowAll(true), []);
+  // Once the newest `limit` rows fill the table, its rows keep one height: a value being saved goes on top and the
+  // oldest row slides under the bottom edge until the save commits and drops it. The box is then laid out on its
+  // own (contained.ts), so a saved value re-measures the rows, not the screen around them. Not while a correction
+  // form is open or all rows are shown (those change the height).
+  const pinned = !showAll && editing === null && total >= limit;
   return (
     <View style={styles.table} testID="readings-table" accessibilityRole="list" aria-label="Readings">
       <TableHead />
-      {unsaved.length ? <UnsavedRows unsaved={unsaved} readingsBefore={readings.length} checkpointsBefore={checkpoints.length} volumeAt={volumeAt} /> : null}
-      <StoredRows readings={readings} checkpoints={checkpoints} volumeAt={volumeAt} limit={limit} onCorrectReading={onCorrectReading} onCorrectCheckpoint={onCorrectCheckpoint} />
+      <View style={ISLAND_PARENT}>
+        <View style={pinned ? [styles.pinned, { height: limit * ROW_HEIGHT }] : null} testID={pinned ? 'rows-pinned' : undefined}>
+          {unsaved.length ? <UnsavedRows unsaved={unsaved} readingsBefore={readings.length} checkpointsBefore={checkpoints.length} volumeAt={volumeAt} /> : null}
+          <StoredRows readings={readings} checkpoints={checkpoints} volumeAt={volumeAt} take={showAll ? total : limit} editing={editing} onToggle={toggle} onClose={close} onCorrectReading={onCorrectReading} onCorrectCheckpoint={onCorrectCheckpoint} />
+        </View>
+      </View>
+      {total > limit && !showAll ? <Button kind="quiet" label={`Show all ${total} rows`} onPress={onShowAll} testID="show-all-rows" /> : null}
       {total === 0 && !unsaved.length ? (
         <Text tone="muted" style={styles.emptyText}>
           No readings yet.
@@ -104,17 +119,16 @@ function UnsavedRows({ unsaved, readingsBefore, checkpointsBefore, volumeAt }: {
   );
 }
 
-type StoredRowsProps = Pick<ReadingsTableProps, 'readings' | 'checkpoints' | 'volumeAt' | 'onCorrectReading' | 'onCorrectCheckpoint'> & { limit: number };
+type StoredRowsProps = Pick<ReadingsTableProps, 'readings' | 'checkpoints' | 'volumeAt' | 'onCorrectReading' | 'onCorrectCheckpoint'> & {
+  take: number;
+  editing: string | null;
+  onToggle(id: string): void;
+  onClose(): void;
+};
 
-const StoredRows = memo(function StoredRows({ readings, checkpoints, volumeAt, limit, onCorrectReading, onCorrectCheckpoint }: StoredRowsProps) {
-  const [showAll, setShowAll] = useState(false);
-  const [editing, setEditing] = useState<string | null>(null);
-  const toggle = useCallback((id: string) => setEditing((e) => (e === id ? null : id)), []);
-  const close = useCallback(() => setEditing(null), []);
-  // Both lists come sorted by time; only the newest `limit` of each can be on screen, so only those are merged
+const StoredRows = memo(function StoredRows({ readings, checkpoints, volumeAt, take, editing, onToggle, onClose, onCorrectReading, onCorrectCheckpoint }: StoredRowsProps) {
+  // Both lists come sorted by time; only the newest `take` of each can be on screen, so only those are merged
   // (a run of thousands of readings does not sort them all at every tap).
-  const total = readings.length + checkpoints.length;
-  const take = showAll ? total : limit;
   const rows: Row[] = [
     ...readings.slice(Math.max(0, readings.length - take)).map((eff, i, a) => ({ kind: 'reading' as const, eff, n: readings.length - a.length + i + 1 })),
     ...checkpoints.slice(Math.max(0, checkpoints.length - take)).map((eff, i, a) => ({ kind: 'checkpoint' as const, eff, n: checkpoints.length - a.length + i + 1 })),
@@ -130,13 +144,12 @@ const StoredRows = memo(function StoredRows({ readings, checkpoints, volumeAt, l
           n={r.n}
           volume={volumeAt(r.eff.current.timeS)}
           open={editing === r.eff.current.id}
-          onToggle={toggle}
-          onClose={close}
+          onToggle={onToggle}
+          onClose={onClose}
           onCorrectReading={onCorrectReading}
           onCorrectCheckpoint={onCorrectCheckpoint}
         />
       ))}
-      {total > shown.length ? <Button kind="quiet" label={`Show all ${total} rows`} onPress={() => setShowAll(true)} testID="show-all-rows" /> : null}
     </>
   );
 });
@@ -230,12 +243,15 @@ function Correction({ kind, unit, onSave, onCancel, history }: { kind: 'reading'
   );
 }
 
+const ROW_HEIGHT = touch.min;
+
 const styles = StyleSheet.create({
   table: { borderWidth: 1, borderColor: colors.line, borderRadius: radius.md, backgroundColor: colors.surface, overflow: 'hidden' },
   row: { flexDirection: 'row', alignItems: 'center', minHeight: touch.min, paddingHorizontal: space.md, borderBottomWidth: 1, borderBottomColor: colors.grid },
   // A data row is one line of fixed height, laid out on its own (contained.ts): without it every change elsewhere
   // on the screen re-measured all the rows shown, most of the layout time of a tap.
-  dataRow: { height: touch.min, ...CONTAINED },
+  dataRow: { height: ROW_HEIGHT, ...CONTAINED },
+  pinned: { overflow: 'hidden', ...CONTAINED },
   headRow: { backgroundColor: colors.sunken, minHeight: 40 },
   checkpointRow: { backgroundColor: colors.paper },
   savingRow: { backgroundColor: colors.sunken },
