@@ -1,5 +1,5 @@
 import type { ReactNode } from 'react';
-import { ScrollView, StyleSheet, View } from 'react-native';
+import { Platform, ScrollView, StyleSheet, View } from 'react-native';
 import { useLayoutSize } from '../theme/layout';
 import { colors, space } from '../theme/tokens';
 import { Text } from './Text';
@@ -41,13 +41,17 @@ export function Screen({ title, subtitle, actions, children, scroll = true, widt
   );
   return (
     <View style={styles.page} testID={testID}>
-      {scroll ? <ScrollView contentContainerStyle={styles.scroll}>{body}</ScrollView> : body}
+      {scroll ? <ScrollView style={styles.scroller} contentContainerStyle={styles.scroll}>{body}</ScrollView> : body}
     </View>
   );
 }
 
 const styles = StyleSheet.create({
   page: { flex: 1, backgroundColor: colors.paper },
+  // react-native-web gives a scroll view `translateZ(0)`, a compositing layer of its own; in Chromium everything
+  // drawn over it inside the page then became a layer too (16 layers on the bench screen instead of 5), and each
+  // frame re-assigned them. The browser still composites the scrolling where it pays (high-density screens).
+  scroller: Platform.OS === 'web' ? { transform: 'none' } : {},
   scroll: { flexGrow: 1 },
   column: { width: '100%', maxWidth: 1200, alignSelf: 'center', gap: space.lg },
   // A line of about 60 characters: a form wider than that is harder to scan on a desk screen.
