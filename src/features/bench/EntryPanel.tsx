@@ -111,9 +111,14 @@ export const EntryPanel = memo(function EntryPanel({ pending, hasElectrode, onRe
   // the current mark (the keys read it through `now`); Save and Discard take presses from the next frame on, and
   // one that lands while they still look enabled after a save finds no mark and does nothing.
   const idle = useDeferredValue(!active);
+  // The strip of waiting marks follows a frame behind too: a tap's own frame shows the mark's time in the heading
+  // (and a saved value in the table) before the chip is added or removed. A chip chosen meanwhile that is no longer
+  // open is ignored (the oldest open mark stays active).
+  const chips = useDeferredValue(open);
+  const chipOn = useDeferredValue(active?.id ?? null);
   return (
     <View style={styles.wrap} testID="entry-panel">
-      <ChipRow open={open} activeId={active?.id ?? null} onChoose={choose} />
+      <ChipRow open={chips} activeId={chipOn} onChoose={choose} />
       <EntryHead kind={active?.kind ?? null} timeS={active?.timeS ?? null} readingMode={readingMode} onMode={onMode} />
       <EntryDisplay text={text} unit={rule.unit} error={error} mvWithoutCalibration={mode === 'mV' && !hasElectrode} />
       <Keypad onKey={onKey} onConfirm={confirm} confirmLabel={`Save ${rule.unit}`} confirmDisabled={idle} allowSign={rule.negative} />
