@@ -48,7 +48,7 @@ export const ReadingsTable = memo(function ReadingsTable({ readings, checkpoints
           <StoredRows readings={readings} checkpoints={checkpoints} volumeAt={volumeAt} take={showAll ? total : limit} editing={editing} onToggle={toggle} onClose={close} onCorrectReading={onCorrectReading} onCorrectCheckpoint={onCorrectCheckpoint} />
         </View>
       </View>
-      {total > limit && !showAll ? <Button kind="quiet" label={`Show all ${total} rows`} onPress={onShowAll} testID="show-all-rows" /> : null}
+      {total > limit && !showAll ? <ShowAll total={total} onPress={onShowAll} /> : null}
       {total === 0 && !unsaved.length ? (
         <Text tone="muted" style={styles.emptyText}>
           No readings yet.
@@ -69,6 +69,12 @@ const TableHead = memo(function TableHead() {
       <Text variant="label" style={styles.c} align="right">pH</Text>
     </View>
   );
+});
+
+// Memoised on the count: a value being saved re-renders the table, and a Pressable-based button is among the
+// costlier elements to render.
+const ShowAll = memo(function ShowAll({ total, onPress }: { total: number; onPress(): void }) {
+  return <Button kind="quiet" label={`Show all ${total} rows`} onPress={onPress} testID="show-all-rows" />;
 });
 
 const TableNote = memo(function TableNote() {
