@@ -332,7 +332,8 @@ const LiveChart = memo(function LiveChart({ readings, deliveryMap, plan, result,
   );
 });
 
-function Estimate({ label, value, testID }: { label: string; value: string; testID?: string }) {
+// Memoised: a stored reading changes the count, not the estimates beside it.
+const Estimate = memo(function Estimate({ label, value, testID }: { label: string; value: string; testID?: string }) {
   return (
     <View style={styles.estimate}>
       <Text variant="caption" tone="muted">
@@ -343,7 +344,7 @@ function Estimate({ label, value, testID }: { label: string; value: string; test
       </Text>
     </View>
   );
-}
+});
 
 function RefillPanel({ onResume }: { onResume: RunActions['clockAction'] }) {
   const [before, setBefore] = useState('');
