@@ -133,7 +133,10 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
 
   return deps.database.db.transaction(async (tx) => {
     const device = await repo.lockDevice(tx, req.deviceId, caller.userId);
-    const results: ChangeResult[] = new Array(req.changes.length);
+    // With answer 'exceptions' a plain acceptance is only counted (null here): no result object per reading.
+    const listAll = req.answer !== 'exceptions';
+    const results: (ChangeResult | null)[] = new Array(req.changes.length);
+    let acceptedUnlisted = 0;
     const log: repo.ChangeLogRow[] = [];
     const touchedRuns = new Set<string>();
     let lastLab: string | null = null;
@@ -150,7 +153,10 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       items.push({ change, index, data: parsed.data, hash: payloadHash(change.kind, parsed.data), replayOnly: change.seq <= device.lastSeq });
     });
     const answer = (it: Item, outcome: ChangeResult['outcome'], status: number, reason?: string, meta?: MetaResolution) => {
-      results[it.index] = result(it.change, outcome, status, reason, meta);
+      if (!listAll && outcome === 'accepted' && !meta) {
+        results[it.index] = null;
+        acceptedUnlisted++;
+      } else results[it.index] = result(it.change, outcome, status, reason, meta);
     };
     const byKind = (k: EntityKind) => items.filter((i) => i.change.kind === k);
 
@@ -467,9 +473,9 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       ...(lastLab ? { labId: lastLab } : {}),
     });
     const rest = { lastSeq, serverTime: receivedAt.toISOString(), clockOffsetMs, clockFlagged, mailed };
-    if (req.answer !== 'exceptions') return { results, ...rest };
-    const listed = results.filter((r) => r.outcome !== 'accepted' || r.meta);
-    return { results: listed, acceptedUnlisted: results.length - listed.length, ...rest };
+    if (listAll) return { results: results as ChangeResult[], ...rest };
+    // A change left unanswered (none should be) is neither listed nor counted: the device then settles nothing.
+    return { results: results.filter((r): r is ChangeResult => r !== null), acceptedUnlisted, ...rest };
   }).then(({ mailed, ...response }) => {
     if (mailed) deps.mailNudge?.();
     return response;
