@@ -2,6 +2,7 @@ import crypto from 'node:crypto';
 import type { z } from 'zod';
 import {
   CLOCK_FLAG_MS,
+  parsePayload,
   payloadSchemas,
   type Change,
   type ChangeResult,
@@ -144,8 +145,7 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
     // Parse every payload first; a bad one is answered here and the rest go on.
     const items: Item[] = [];
     req.changes.forEach((change, index) => {
-      const schema = payloadSchemas[change.kind];
-      const parsed = schema.safeParse(change.payload);
+      const parsed = parsePayload(change.kind, change.payload);
       if (!parsed.success) {
         results[index] = result(change, 'rejected', 422, zodReason(parsed.error));
         return;
