@@ -91,8 +91,18 @@ export function canonicalJson(value: unknown): string {
   return `${out}}`;
 }
 
-export function payloadHash(kind: EntityKind, payload: unknown): string {
-  return sha256Hex(`${kind}\n${canonicalJson(payload)}`);
+/**
+ * canonicalJson of a parsed reading payload, written in one go: its four keys in that order, a uuid (no escapes),
+ * numbers and nulls as JSON writes them. Readings are most of every push, and the general writer built about 1 kB of
+ * intermediate strings per reading. Equal to canonicalJson for every parsed reading (sync.test.ts).
+ */
+export function readingCanonicalJson(d: Parsed<'reading'>): string {
+  return `{"mV":${d.mV},"pH":${d.pH},"runId":"${d.runId}","timeS":${d.timeS}}`;
+}
+
+/** The stored hash of a payload as parsed by its kind's schema. */
+export function payloadHash<K extends EntityKind>(kind: K, payload: Parsed<K>): string {
+  return sha256Hex(`${kind}\n${kind === 'reading' ? readingCanonicalJson(payload as Parsed<'reading'>) : canonicalJson(payload)}`);
 }
 
 // Node's one-shot hash (20.12+) skips a Hash object per call; the same digest either way.
