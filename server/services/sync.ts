@@ -196,7 +196,8 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
     }
 
     // Runs the caller may write to: what the database has, plus runs accepted earlier in this batch.
-    const runInfo = new Map<string, { labId: string; analystId: string }>();
+    // One object per run, handed out as it is for each of its records (a push is thousands of one run's readings).
+    const runInfo = new Map<string, { id: string; labId: string; analystId: string }>();
     const referenced = new Set<string>();
     for (const it of items) {
       const d = it.data as { runId?: string };
@@ -206,7 +207,7 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
     // An approved revision is a signed record: nothing is added to or changed in it until a new revision is opened.
     const locked = new Set<string>();
     for (const r of await repo.runsForPush(tx, [...referenced])) {
-      runInfo.set(r.id, { labId: r.labId, analystId: r.analystId });
+      runInfo.set(r.id, { id: r.id, labId: r.labId, analystId: r.analystId });
       if (r.locked) locked.add(r.id);
     }
     let mailed = false;
@@ -234,7 +235,7 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
         answer(it, 'rejected', 409, 'This run is approved and locked; a manager must open a new revision before it can be changed.');
         return null;
       }
-      return { id: runId, ...run };
+      return run;
     };
     /** Highest change-log position this batch took (readings carry theirs themselves: no change-log row). */
     let maxSeq: number | null = null;
@@ -244,7 +245,7 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
     const inserting = async (table: repo.RowTable, rows: Parameters<typeof repo.insertIgnoringExisting>[2]) => {
       const done = await repo.insertIgnoringExisting(tx, table, rows);
       logChanged(done.maxSeq);
-      return done.ids;
+      return done;
     };
     const accepted = (it: Item, entity: string, recordId: string, labId: string, runId: string | null) => {
       answer(it, 'accepted', 201);
@@ -284,7 +285,7 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       for (const it of pending) {
         const d = it.data as Parsed<'run'>;
         if (inserted.has(it.change.id)) {
-          runInfo.set(it.change.id, { labId: d.labId, analystId: caller.userId });
+          runInfo.set(it.change.id, { id: it.change.id, labId: d.labId, analystId: caller.userId });
           accepted(it, 'run', it.change.id, d.labId, it.change.id);
         } else taken.push(it);
       }
@@ -297,19 +298,22 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
     async function rowsStage<K extends 'reading' | 'checkpoint' | 'run_event'>(kind: K, build: (it: Item, d: Parsed<K>, labId: string) => Record<string, unknown>) {
       const fresh = await settleReplays(kind, byKind(kind));
       const rows: Record<string, unknown>[] = [];
-      const pending: { it: Item; labId: string; runId: string }[] = [];
+      const pending: Item[] = [];
+      const pendingRuns: { id: string; labId: string }[] = [];
       for (const it of fresh) {
         const d = it.data as Parsed<K>;
         const run = runFor(it, (d as { runId: string }).runId);
         if (!run) continue;
         rows.push(build(it, d, run.labId));
-        pending.push({ it, labId: run.labId, runId: run.id });
+        pending.push(it);
+        pendingRuns.push(run);
       }
       const inserted = await inserting(kind, rows as never);
       const taken: Item[] = [];
-      for (const p of pending) {
-        if (inserted.has(p.it.change.id)) accepted(p.it, kind, p.it.change.id, p.labId, p.runId);
-        else taken.push(p.it);
+      for (let i = 0; i < pending.length; i++) {
+        const it = pending[i];
+        if (inserted.has(it.change.id)) accepted(it, kind, it.change.id, pendingRuns[i].labId, pendingRuns[i].id);
+        else taken.push(it);
       }
       if (taken.length) await settleTaken(kind, taken);
     }
