@@ -1,7 +1,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { ZodError } from 'zod';
-import { MAX_BATCH, changeSchema, parsePayload, parsePushRequest, payloadSchemas, pushRequestSchema, quickChange, quickReadingPayload } from './sync';
+import { MAX_BATCH, changeSchema, isQuickChange, parsePayload, parsePushRequest, payloadSchemas, pushRequestSchema, quickChange, quickReadingPayload } from './sync';
 
 // The quick paths of the sync schemas against the schemas themselves (no outside source: the schemas are the
 // contract). A quick path may decline anything; what it takes, the schema must take, with the same result.
@@ -98,6 +98,7 @@ describe('quick paths of the sync schemas', () => {
     fc.assert(
       fc.property(change, (c) => {
         if (agrees(quickChange, changeSchema, c)) taken++;
+        expect(isQuickChange(c)).toBe(quickChange(c) !== undefined);
       }),
       { numRuns: 3000 },
     );

@@ -186,14 +186,18 @@ export type Change = z.infer<typeof changeSchema>;
 
 const ENTITY_KINDS: ReadonlySet<unknown> = new Set(entityKindSchema.options);
 
+/** True when quickChange takes this change: a check with nothing to collect, for a device checking what it sends. */
+export function isQuickChange(v: unknown): boolean {
+  if (!isObject(v)) return false;
+  // An absent payload is left to the schema.
+  return isUuid(v.id) && ENTITY_KINDS.has(v.kind) && isIntIn(v.seq, 1, Number.MAX_SAFE_INTEGER) && isIntIn(v.recordedAt, 0, DEVICE_MS_MAX) && v.payload !== undefined;
+}
+
 /** changeSchema on a change of any kind (its payload is judged later, by kind). */
 export function quickChange(v: unknown): Change | undefined {
-  if (!isObject(v)) return undefined;
-  const { id, kind, seq, recordedAt, payload } = v;
-  if (!isUuid(id) || !ENTITY_KINDS.has(kind) || !isIntIn(seq, 1, Number.MAX_SAFE_INTEGER) || !isIntIn(recordedAt, 0, DEVICE_MS_MAX)) return undefined;
-  // An absent payload is left to the schema.
-  if (payload === undefined) return undefined;
-  return { id, kind: kind as EntityKind, seq, recordedAt, payload };
+  if (!isQuickChange(v)) return undefined;
+  const c = v as Change;
+  return { id: c.id, kind: c.kind, seq: c.seq, recordedAt: c.recordedAt, payload: c.payload };
 }
 
 /**
