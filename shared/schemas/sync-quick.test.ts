@@ -75,51 +75,47 @@ function agrees<T>(quick: (v: unknown) => T | undefined, schema: { safeParse(v: 
   return true;
 }
 
+/** Runs a check on generated input; the comparison means something only if the quick path took a fair share. */
+function quickShare<T>(input: fc.Arbitrary<T>, numRuns: number, least: number, check: (v: T) => boolean) {
+  let taken = 0;
+  fc.assert(
+    fc.property(input, (v) => {
+      if (check(v)) taken++;
+    }),
+    { numRuns },
+  );
+  expect(taken).toBeGreaterThan(least);
+}
+
 describe('quick paths of the sync schemas', () => {
   it('a reading payload: takes only what readingPayloadSchema takes, with the same result', () => {
-    let taken = 0;
-    fc.assert(
-      fc.property(payload, (p) => {
-        if (agrees(quickReadingPayload, payloadSchemas.reading, p)) taken++;
-        // parsePayload answers as the schema does, taken quick or not.
-        const via = parsePayload('reading', p);
-        const z = payloadSchemas.reading.safeParse(p);
-        expect(via.success).toBe(z.success);
-        if (z.success) expect(via.data).toStrictEqual(z.data);
-      }),
-      { numRuns: 3000 },
-    );
-    // The comparison means something only if the quick path takes a fair share.
-    expect(taken).toBeGreaterThan(50);
+    quickShare(payload, 3000, 50, (p) => {
+      // parsePayload answers as the schema does, taken quick or not.
+      const via = parsePayload('reading', p);
+      const z = payloadSchemas.reading.safeParse(p);
+      expect(via.success).toBe(z.success);
+      if (z.success) expect(via.data).toStrictEqual(z.data);
+      return agrees(quickReadingPayload, payloadSchemas.reading, p);
+    });
   });
 
   it('a change envelope: takes only what changeSchema takes, with the same result', () => {
-    let taken = 0;
-    fc.assert(
-      fc.property(change, (c) => {
-        if (agrees(quickChange, changeSchema, c)) taken++;
-        expect(isQuickChange(c)).toBe(quickChange(c) !== undefined);
-      }),
-      { numRuns: 3000 },
-    );
-    expect(taken).toBeGreaterThan(30);
+    quickShare(change, 3000, 30, (c) => {
+      expect(isQuickChange(c)).toBe(quickChange(c) !== undefined);
+      return agrees(quickChange, changeSchema, c);
+    });
   });
 
   it('a push request: parsePushRequest gives what pushRequestSchema.parse gives, or throws its error', () => {
-    let quick = 0;
-    fc.assert(
-      fc.property(pushRequest, (req) => {
-        const z = pushRequestSchema.safeParse(req);
-        if (!z.success) {
-          expect(() => parsePushRequest(req)).toThrow(ZodError);
-          return;
-        }
-        expect(parsePushRequest(req)).toStrictEqual(z.data);
-        if (z.data.changes.every((c) => quickChange(c))) quick++;
-      }),
-      { numRuns: 2000 },
-    );
-    expect(quick).toBeGreaterThan(40);
+    quickShare(pushRequest, 2000, 40, (req) => {
+      const z = pushRequestSchema.safeParse(req);
+      if (!z.success) {
+        expect(() => parsePushRequest(req)).toThrow(ZodError);
+        return false;
+      }
+      expect(parsePushRequest(req)).toStrictEqual(z.data);
+      return z.data.changes.every((c) => quickChange(c));
+    });
   });
 
   it('every field at and beside its bounds, one at a time in an otherwise valid value', () => {
