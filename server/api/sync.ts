@@ -1,5 +1,5 @@
 import { runs } from '../../db/schema';
-import { liveQuerySchema, pullQuerySchema, pushRequestSchema } from '../../shared/schemas/sync';
+import { liveQuerySchema, parsePushRequest, pullQuerySchema, pushRequestSchema } from '../../shared/schemas/sync';
 import { recordLab, route } from '../http/routes';
 import { liveHub } from '../services/live';
 import * as sync from '../services/sync';
@@ -13,6 +13,7 @@ export const syncRoutes = [
     path: '/sync/push',
     access: 'signedIn',
     body: pushRequestSchema,
+    parseBody: parsePushRequest,
     // Writes records, runs and the device row only: never a session, account or membership.
     keepsAccess: true,
     summary: 'Push a batch of device changes; answers per change (accepted, duplicate, conflict, rejected, out_of_order).',

@@ -1,6 +1,7 @@
 import express, { Router } from 'express';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { z } from 'zod';
 import { auditLog } from '../../db/schema';
 import { authFixture, type AuthFixture } from '../auth/test-fixture';
 import { closeTemplate } from '../testing/db';
@@ -12,6 +13,8 @@ let fx: AuthFixture;
 let app: express.Express;
 let ownRecord: string;
 let otherRecord: string;
+const countBody = z.object({ n: z.number().int() });
+let quickParses = 0;
 
 beforeAll(async () => {
   fx = await authFixture();
@@ -26,6 +29,18 @@ beforeAll(async () => {
         labOf: recordLab(auditLog, auditLog.id, auditLog.labId, 'recordId'),
         summary: 'test only',
         handler: ({ lab }) => ({ lab: lab!.id }),
+      }),
+      route({
+        method: 'post',
+        path: '/parsed',
+        access: 'signedIn',
+        body: countBody,
+        parseBody: (raw) => {
+          quickParses++;
+          return countBody.parse(raw);
+        },
+        summary: 'test only',
+        handler: ({ body }) => body,
       }),
     ],
     fx.ctx,
@@ -74,5 +89,19 @@ describe('record routes (labOf)', () => {
 
   it('refuses to declare a role route without a way to find its lab', () => {
     expect(() => route({ method: 'get', path: '/x', access: ['manager'], summary: 'x', handler: () => ({}) })).toThrow(/labParam or labOf/);
+  });
+});
+
+describe('parseBody', () => {
+  it('parses the body in place of the schema, and its ZodError answers 400 as the schema would', async () => {
+    const token = (await fx.session(fx.people.analyst.id)).accessToken;
+    const post = (body: unknown) => request(app).post('/parsed').set('authorization', `Bearer ${token}`).send(body as object);
+    const before = quickParses;
+    const ok = await post({ n: 3, extra: true });
+    expect(ok.status).toBe(200);
+    expect(ok.body).toEqual({ n: 3 });
+    const bad = await post({ n: 1.5 });
+    expect(bad.status).toBe(400);
+    expect(quickParses - before).toBe(2);
   });
 });

@@ -51,6 +51,11 @@ export interface RouteDef<B = unknown, Q = unknown> {
   labParam?: string;
   labOf?: (params: Record<string, string>, app: ServerContext) => Promise<string | null | undefined>;
   body?: z.ZodType<B>;
+  /**
+   * Parses the body in place of `body.parse` (same result, same errors): a quicker path for a hot route. `body`
+   * stays the contract (the fuzz suite and the route matrix read it).
+   */
+  parseBody?: (raw: unknown) => B;
   query?: z.ZodType<Q>;
   /** Success status (default 200; 204 sends no body). */
   status?: number;
@@ -162,7 +167,7 @@ export function mountRoutes(router: Router, defs: RouteDef[], app: ServerContext
           lab = { id: labId, role };
         }
       }
-      const body = def.body ? def.body.parse(req.body ?? {}) : undefined;
+      const body = def.parseBody ? def.parseBody(req.body ?? {}) : def.body ? def.body.parse(req.body ?? {}) : undefined;
       const query = def.query ? def.query.parse(req.query ?? {}) : undefined;
       let result: unknown;
       try {

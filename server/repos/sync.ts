@@ -66,8 +66,8 @@ export type RowTable = keyof typeof TABLES;
 const PARAMS_PER_STATEMENT = 30_000;
 
 export interface Inserted {
-  /** Ids that were new (the rest were already stored and are untouched). */
-  ids: Set<string>;
+  /** Whether this id of the rows given was new (the rest were already stored and are untouched). */
+  has(id: string): boolean;
   /** Highest change-log position taken (readings carry theirs), null when none. */
   maxSeq: number | null;
 }
@@ -80,7 +80,7 @@ export async function insertIgnoringExisting(
 ): Promise<Inserted> {
   if (table === 'reading') return insertReadingsIgnoringExisting(tx, rows as ReadingInsert[]);
   const inserted = new Set<string>();
-  if (!rows.length) return { ids: inserted, maxSeq: null };
+  if (!rows.length) return { has: () => false, maxSeq: null };
   const t = TABLES[table];
   const perRow = Object.keys(rows[0]).length || 1;
   const chunk = Math.max(1, Math.floor(PARAMS_PER_STATEMENT / perRow));
@@ -92,7 +92,7 @@ export async function insertIgnoringExisting(
       .returning({ id: t.id })) as { id: string }[];
     for (const r of out) inserted.add(r.id);
   }
-  return { ids: inserted, maxSeq: null };
+  return { has: (id) => inserted.has(id), maxSeq: null };
 }
 
 const NEEDS_ESCAPE = /["\\]/;
@@ -145,7 +145,7 @@ function readingColumns(now: () => string): [name: string, type: string, get: (r
  * already stored leaves its place unused, a gap pulls step over like any other.
  */
 export async function insertReadingsIgnoringExisting(tx: Executor, rows: ReadingInsert[]): Promise<Inserted> {
-  if (!rows.length) return { ids: new Set(), maxSeq: null };
+  if (!rows.length) return { has: () => false, maxSeq: null };
   const reserved = await tx.execute<{ last: string | number }>(sql`
     with sync_lock as (select pg_advisory_xact_lock(${SYNC_LOCK}))
     select setval('sync_changes_seq_seq', nextval('sync_changes_seq_seq') + ${rows.length - 1}) as last from sync_lock`);
@@ -183,14 +183,16 @@ export async function insertReadingsIgnoringExisting(tx: Executor, rows: Reading
     from unnest(${sql.join(arrays, sql`, `)}) with ordinality as u(${sql.raw(names.join(', '))}, place)
     on conflict do nothing`);
   const n = affectedOf(res);
-  if (n === rows.length) return { ids: new Set(rows.map((r) => r.id)), maxSeq: last };
-  if (!n) return { ids: new Set(), maxSeq: null };
+  // All went in (a push's usual case): no set of thousands of ids to build and look up.
+  if (n === rows.length) return { has: () => true, maxSeq: last };
+  if (!n) return { has: () => false, maxSeq: null };
   // Some ids were taken: the new rows are those holding a place of this block (rows stored before hold an older
   // place, or none).
   const fresh = rowsOf<{ id: string; seq: string | number }>(
     await tx.execute(sql`select id, seq from ${readings} where id = any(${ids}::uuid[]) and seq between ${first} and ${last}`),
   );
-  return { ids: new Set(fresh.map((r) => r.id)), maxSeq: fresh.reduce((m, r) => Math.max(m, Number(r.seq)), first) };
+  const freshIds = new Set(fresh.map((r) => r.id));
+  return { has: (id) => freshIds.has(id), maxSeq: fresh.reduce((m, r) => Math.max(m, Number(r.seq)), first) };
 }
 
 /** Rows an INSERT wrote: PGlite reports affectedRows, node-postgres rowCount. */

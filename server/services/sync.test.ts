@@ -1,12 +1,13 @@
+import { createHash } from 'node:crypto';
 import { count, eq, inArray } from 'drizzle-orm';
 import { v7 } from 'uuid';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Database } from '../../db/client';
 import { checkpoints, devices, readings, runClockFlags, runMetaHistory, runs } from '../../db/schema';
-import { CLOCK_FLAG_MS, pushRequestSchema } from '../../shared/schemas/sync';
+import { CLOCK_FLAG_MS, payloadSchemas, pushRequestSchema } from '../../shared/schemas/sync';
 import { closeTemplate, testDatabase } from '../testing/db';
 import fc from 'fast-check';
-import { canonicalJson, pull, push } from './sync';
+import { canonicalJson, payloadHash, pull, push, readingCanonicalJson } from './sync';
 import { fakeDevice, syncWorld } from './sync.testkit';
 
 let database: Database;
@@ -55,6 +56,19 @@ describe('canonical payload hash', () => {
     const many = Object.fromEntries(Array.from({ length: 40 }, (_, i) => [`k${(i * 7919) % 40}${i % 3 ? 'x' : ''}`, i]));
     expect(canonicalJson(many)).toBe(firstCanonicalJson(many));
     expect(canonicalJson({ ...odd, ...many })).toBe(firstCanonicalJson({ ...odd, ...many }));
+  });
+
+  it('a reading payload is written and hashed exactly as the general writer does', () => {
+    const value = (min: number, max: number) => fc.oneof(fc.constant(null), fc.constant(undefined), fc.constantFrom(min, max, 0, -0, 1e-7), fc.double({ min, max, noNaN: true }));
+    fc.assert(
+      fc.property(fc.uuid({ version: [4, 7] }), fc.double({ min: 0, max: 604_800, noNaN: true }), value(-2, 16), value(-2000, 2000), (runId, timeS, pH, mV) => {
+        const parsed = payloadSchemas.reading.safeParse({ runId, timeS, pH, mV });
+        if (!parsed.success) return;
+        expect(readingCanonicalJson(parsed.data)).toBe(firstCanonicalJson(parsed.data));
+        expect(payloadHash('reading', parsed.data)).toBe(createHash('sha256').update(`reading\n${firstCanonicalJson(parsed.data)}`).digest('hex'));
+      }),
+      { numRuns: 1000 },
+    );
   });
 });
 

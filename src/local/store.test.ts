@@ -144,6 +144,8 @@ describe('local store', () => {
       ['mark', m.id, 'insert', 'pending'],
       ['reading', r.id, 'insert', 'pending'],
     ]);
+    // The sync is handed the reading decoded, the mark without its payload (it never goes out; its JSON stays queued).
+    expect(rows.map((o) => o.payload)).toEqual([null, r]);
     // What the sync makes of them: the mark stays local, the reading goes out with the mark's time.
     const ctx = { deviceId: store.device.id, runLab: async () => 'lab-1' };
     expect(await toChanges(rows[0], ctx)).toEqual({ kind: 'local-only' });

@@ -333,9 +333,13 @@ export class LocalStore {
 
   // ---------- outbox (for the sync) ----------
 
+  /** Rows still to push, oldest first. A mark's payload is not read (null): a mark never goes out (see OutboxRow). */
   async pendingOutbox(limit = 500): Promise<OutboxRow[]> {
-    const rows = await this.db.getAllAsync<any>("SELECT * FROM outbox WHERE state IN ('pending', 'sent') ORDER BY seq LIMIT ?", limit);
-    return rows.map((o) => ({ seq: o.seq, entity: o.entity, recordId: o.record_id, op: o.op, payload: JSON.parse(o.payload_json), createdWallMs: o.created_wall_ms, state: o.state, attempts: o.attempts, lastError: o.last_error }));
+    const rows = await this.db.getAllAsync<any>(
+      "SELECT seq, entity, record_id, op, CASE WHEN entity = 'mark' THEN NULL ELSE payload_json END AS payload_json, created_wall_ms, state, attempts, last_error FROM outbox WHERE state IN ('pending', 'sent') ORDER BY seq LIMIT ?",
+      limit,
+    );
+    return rows.map((o) => ({ seq: o.seq, entity: o.entity, recordId: o.record_id, op: o.op, payload: o.payload_json === null ? null : JSON.parse(o.payload_json), createdWallMs: o.created_wall_ms, state: o.state, attempts: o.attempts, lastError: o.last_error }));
   }
 
   async outboxCounts(): Promise<Record<OutboxRow['state'], number>> {

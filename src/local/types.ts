@@ -82,6 +82,10 @@ export interface OutboxRow {
   entity: 'run' | 'run_event' | 'mark' | 'reading' | 'checkpoint';
   recordId: string;
   op: 'insert' | 'update';
+  /**
+   * The row's record as JSON-decoded from the queue. Null for a mark as the sync reads the queue: a mark never goes
+   * out (its time travels with its reading), and decoding half of a long offline run for nothing cost the push.
+   */
   payload: unknown;
   createdWallMs: number;
   state: 'pending' | 'sent' | 'acked' | 'rejected';

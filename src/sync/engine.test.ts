@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import type { PushRequest, PushResponse } from '../../shared/schemas/sync';
+import { MAX_BATCH_BEFORE, type PushRequest, type PushResponse } from '../../shared/schemas/sync';
 import { describeSync } from './describe';
 import { SyncEngine, TransportError, type SyncTransport } from './engine';
 import { MemoryDevice } from './memoryStore';
@@ -53,6 +53,30 @@ describe('sync engine', () => {
     const seqs = pushes.flatMap((p) => p.changes.map((c) => c.seq));
     expect(seqs).toEqual([...seqs].sort((a, b) => a - b));
     expect(pushes.flatMap((p) => p.changes.map((c) => c.kind)).filter((k) => k === 'reading').length).toBe(25);
+    expect(dev.outbox.every((o) => o.state === 'acked')).toBe(true);
+    expect(e.status.state).toBe('synced');
+  });
+
+  it('a server that takes only MAX_BATCH_BEFORE changes (400 to more) gets the rest in pushes of that size', async () => {
+    const dev = new MemoryDevice('u1');
+    const run = dev.createRun(LAB);
+    for (let i = 0; i < MAX_BATCH_BEFORE + 500; i++) dev.addReading(run.id, i, 4);
+    const { t, pushes } = fakeServer();
+    let refused = 0;
+    const older: SyncTransport = {
+      ...t,
+      push: async (req) => {
+        if (req.changes.length > MAX_BATCH_BEFORE) {
+          refused++;
+          throw new TransportError('client', 'changes: Too big: expected array to have <=2000 items', 400);
+        }
+        return t.push(req);
+      },
+    };
+    const e = new SyncEngine(dev, older, noTimers);
+    await e.sync();
+    expect(refused).toBe(1);
+    expect(pushes.map((p) => p.changes.length)).toEqual([MAX_BATCH_BEFORE, 501]);
     expect(dev.outbox.every((o) => o.state === 'acked')).toBe(true);
     expect(e.status.state).toBe('synced');
   });

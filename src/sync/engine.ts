@@ -3,7 +3,7 @@
 // event, periodically while anything waits, and again after a failure with exponential backoff.
 // Nothing here deletes local data: a row leaves the queue only as "acked" (the server has it) or "rejected" (the
 // server said it never can take it, with the reason, shown to the user).
-import { MAX_BATCH, type Change, type ChangeResult, type MetaResolution, type PullResponse, type PulledChange, type PushRequest, type PushResponse } from '../../shared/schemas/sync';
+import { MAX_BATCH, MAX_BATCH_BEFORE, type Change, type ChangeResult, type MetaResolution, type PullResponse, type PulledChange, type PushRequest, type PushResponse } from '../../shared/schemas/sync';
 import type { OutboxRow } from '../local/types';
 import { changesOf, needsLab, SLOTS, toChanges, type MapContext } from './changes';
 
@@ -103,6 +103,8 @@ export class SyncEngine {
   private current: Promise<void> | null = null;
   private again = false;
   private failures = 0;
+  /** Changes per push now: maxChanges, or fewer once a server took only as many as servers before MAX_BATCH did. */
+  private maxChanges: number;
   private timer: unknown = null;
   private unOnline: (() => void) | null = null;
   private listeners = new Set<(s: SyncStatus) => void>();
@@ -130,6 +132,7 @@ export class SyncEngine {
       clearTimer: (t) => clearTimeout(t as ReturnType<typeof setTimeout>),
       ...opts,
     };
+    this.maxChanges = this.o.maxChanges;
   }
 
   subscribe(fn: (s: SyncStatus) => void): () => void {
@@ -248,7 +251,7 @@ export class SyncEngine {
         if (m.kind === 'local-only') local.push({ seq: row.seq, state: 'acked' });
         else if (m.kind === 'invalid') local.push({ seq: row.seq, state: 'rejected', reason: m.reason });
         else {
-          if (changes.length + m.changes.length > this.o.maxChanges) break;
+          if (changes.length + m.changes.length > this.maxChanges) break;
           for (const c of m.changes) changes.push(c);
           send.push(row);
         }
@@ -259,7 +262,17 @@ export class SyncEngine {
         continue;
       }
       // Only the exceptions come back; every other change is counted as accepted (checked against what was sent).
-      const res = await this.transport.push({ deviceId: this.store.deviceId, sentAt: Math.max(0, Math.round(this.o.now())), changes, answer: 'exceptions' });
+      let res: PushResponse;
+      try {
+        res = await this.transport.push({ deviceId: this.store.deviceId, sentAt: Math.max(0, Math.round(this.o.now())), changes, answer: 'exceptions' });
+      } catch (err) {
+        // A server from before MAX_BATCH was raised refuses a longer push as a bad request: go again at its size.
+        if (err instanceof TransportError && err.status === 400 && changes.length > MAX_BATCH_BEFORE) {
+          this.maxChanges = MAX_BATCH_BEFORE;
+          continue;
+        }
+        throw err;
+      }
       if (!answerCovers(res, changes)) throw new TransportError('server', "The server's answer does not match the changes sent; they stay queued and go again.");
       this.set({ clockOffsetMs: res.clockOffsetMs, clockFlagged: res.clockFlagged });
       // Results by outbox row (a row's changes share its seq ÷ SLOTS); a row with none was accepted whole.

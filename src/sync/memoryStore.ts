@@ -73,8 +73,8 @@ export class MemoryDevice implements SyncStore {
     const out: OutboxRow[] = [];
     for (const o of this.outbox) {
       if (out.length >= limit) break;
-      // Fresh copies with the payload decoded from its JSON text, as the SQLite store hands them out.
-      if (o.state === 'pending' || o.state === 'sent') out.push({ ...o, payload: JSON.parse(this.payloadJson.get(o.seq)!) });
+      // Fresh copies with the payload decoded from its JSON text (a mark's left out), as the SQLite store hands them out.
+      if (o.state === 'pending' || o.state === 'sent') out.push({ ...o, payload: o.entity === 'mark' ? null : JSON.parse(this.payloadJson.get(o.seq)!) });
     }
     return out;
   }
