@@ -6,6 +6,7 @@ import type { Database } from '../db/client';
 import { apiRouter } from './api';
 import { createServerContext, type AuthOptions, type ServerContext } from './auth/context';
 import { errorHandler, unknownApiRoute } from './http/errors';
+import { API_BODY_LIMIT_BYTES } from '../shared/schemas/sync';
 
 export interface AppDeps {
   database: Database;
@@ -57,7 +58,7 @@ export function createApp(deps: AppDeps): Express {
   // A CSV import may be up to 5 MB of text (shared/schemas/desk.ts), sent as JSON; every other body stays under 2 MB.
   // The first parser to read a body marks it parsed, so the general one then passes it by.
   app.use('/api/labs/:labId/imports', express.json({ limit: '6mb' }));
-  app.use('/api', express.json({ limit: '2mb' }), apiRouter({ ...deps, log }, context), unknownApiRoute);
+  app.use('/api', express.json({ limit: API_BODY_LIMIT_BYTES }), apiRouter({ ...deps, log }, context), unknownApiRoute);
 
   if (deps.webDir && existsSync(deps.webDir)) {
     const webDir = deps.webDir;

@@ -211,6 +211,14 @@ export const MAX_BATCH = 5000;
 /** What servers took before MAX_BATCH was raised: a device refused a longer push (400) goes again with this many. */
 export const MAX_BATCH_BEFORE = 2000;
 
+/** The largest JSON body the API takes (bytes; server/app.ts). */
+export const API_BODY_LIMIT_BYTES = 2 * 1024 * 1024;
+/**
+ * A push's changes as UTF-8 JSON at most (bytes): under the body limit with room for the envelope. Long notes or
+ * correction reasons reach it before MAX_BATCH does (5,000 reasons of 2,000 characters are ~10 MB).
+ */
+export const PUSH_BYTES_BUDGET = API_BODY_LIMIT_BYTES - 64 * 1024;
+
 export const pushRequestSchema = z
   .object({
     deviceId: uuid,

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { MAX_BATCH_BEFORE, type PushRequest, type PushResponse } from '../../shared/schemas/sync';
+import { API_BODY_LIMIT_BYTES, MAX_BATCH, MAX_BATCH_BEFORE, type PushRequest, type PushResponse } from '../../shared/schemas/sync';
 import { describeSync } from './describe';
-import { SyncEngine, TransportError, type SyncTransport } from './engine';
+import { READING_BYTES, SyncEngine, TransportError, type SyncTransport } from './engine';
 import { MemoryDevice } from './memoryStore';
 
 const LAB = '0190a3b0-0000-7000-8000-000000000001';
@@ -55,6 +55,37 @@ describe('sync engine', () => {
     expect(pushes.flatMap((p) => p.changes.map((c) => c.kind)).filter((k) => k === 'reading').length).toBe(25);
     expect(dev.outbox.every((o) => o.state === 'acked')).toBe(true);
     expect(e.status.state).toBe('synced');
+  });
+
+  it('keeps each push under the API body limit: long notes go in several pushes, readings MAX_BATCH at a time', async () => {
+    const dev = new MemoryDevice('u1');
+    const run = dev.createRun(LAB);
+    // 300 offline edits of 19,000 three-byte characters (~17 MB in all; notes take up to 20,000 characters).
+    for (let i = 0; i < 300; i++) dev.editNotes(run.id, `${i} ${'€'.repeat(19_000)}`);
+    for (let i = 0; i < MAX_BATCH; i++) dev.addReading(run.id, i, 4);
+    const { t, pushes } = fakeServer();
+    const e = new SyncEngine(dev, t, noTimers);
+    await e.sync();
+    const bodies = pushes.map((p) => Buffer.byteLength(JSON.stringify(p)));
+    expect(Math.max(...bodies)).toBeLessThanOrEqual(API_BODY_LIMIT_BYTES);
+    expect(pushes.length).toBeGreaterThanOrEqual(9);
+    // The readings after the notes: the push that starts with them carries MAX_BATCH of them (or the rest of them
+    // after those that fitted beside the last notes).
+    expect(pushes.flatMap((p) => p.changes).filter((c) => c.kind === 'reading').length).toBe(MAX_BATCH);
+    expect(pushes.filter((p) => p.changes.every((c) => c.kind === 'reading')).length).toBeLessThanOrEqual(1);
+    expect(dev.outbox.every((o) => o.state === 'acked')).toBe(true);
+    expect(e.status.state).toBe('synced');
+  });
+
+  it("counts a reading's size without writing it out: the bound holds for the longest numbers a reading can carry", async () => {
+    const dev = new MemoryDevice('u1');
+    const run = dev.createRun(LAB);
+    dev.addReading(run.id, 1, 4);
+    const { t, pushes } = fakeServer();
+    await new SyncEngine(dev, t, noTimers).sync();
+    const reading = pushes[0].changes.find((c) => c.kind === 'reading')!;
+    const longest = { ...reading, seq: Number.MAX_SAFE_INTEGER, recordedAt: 253402300799999, payload: { ...(reading.payload as object), timeS: 604799.9999999999, pH: -1.2345678901234567, mV: -1999.9999999999998 } };
+    expect(Buffer.byteLength(JSON.stringify(longest))).toBeLessThanOrEqual(READING_BYTES);
   });
 
   it('a server that takes only MAX_BATCH_BEFORE changes (400 to more) gets the rest in pushes of that size', async () => {

@@ -3,7 +3,7 @@
 // event, periodically while anything waits, and again after a failure with exponential backoff.
 // Nothing here deletes local data: a row leaves the queue only as "acked" (the server has it) or "rejected" (the
 // server said it never can take it, with the reason, shown to the user).
-import { MAX_BATCH, MAX_BATCH_BEFORE, type Change, type ChangeResult, type MetaResolution, type PullResponse, type PulledChange, type PushRequest, type PushResponse } from '../../shared/schemas/sync';
+import { MAX_BATCH, MAX_BATCH_BEFORE, PUSH_BYTES_BUDGET, type Change, type ChangeResult, type MetaResolution, type PullResponse, type PulledChange, type PushRequest, type PushResponse } from '../../shared/schemas/sync';
 import type { OutboxRow } from '../local/types';
 import { changesOf, needsLab, SLOTS, toChanges, type MapContext } from './changes';
 
@@ -239,6 +239,8 @@ export class SyncEngine {
       const local: Settlement[] = [];
       const send: OutboxRow[] = [];
       const changes: Change[] = [];
+      // UTF-8 JSON of the changes so far, kept under the body limit (a row that would pass it waits for the next push).
+      let bytes = 0;
       let waitReason: string | null = null;
       for (const row of rows) {
         // Only a run's first row waits on the database (its lab); awaiting every row would cost a turn of the
@@ -252,6 +254,9 @@ export class SyncEngine {
         else if (m.kind === 'invalid') local.push({ seq: row.seq, state: 'rejected', reason: m.reason });
         else {
           if (changes.length + m.changes.length > this.maxChanges) break;
+          const rowBytes = m.changes.reduce((n, c) => n + bytesOf(c), 0);
+          if (changes.length && bytes + rowBytes > PUSH_BYTES_BUDGET) break;
+          bytes += rowBytes;
           for (const c of m.changes) changes.push(c);
           send.push(row);
         }
@@ -315,4 +320,23 @@ export class SyncEngine {
       if (!page.more) return;
     }
   }
+}
+
+/**
+ * A change's size as UTF-8 JSON (bytes). A reading's is bounded (a uuid, a kind and six numbers, all ASCII: under
+ * 300 bytes), so it is not written out to be counted; anything else may carry long text (notes, reasons).
+ */
+export const READING_BYTES = 320;
+function bytesOf(c: Change): number {
+  return c.kind === 'reading' ? READING_BYTES : utf8Length(JSON.stringify(c));
+}
+
+function utf8Length(s: string): number {
+  let n = 0;
+  for (let i = 0; i < s.length; i++) {
+    const u = s.charCodeAt(i);
+    // A surrogate pair (4 bytes) counts 2 + 2 here.
+    n += u < 0x80 ? 1 : u < 0x800 ? 2 : u >= 0xd800 && u <= 0xdfff ? 2 : 3;
+  }
+  return n;
 }
