@@ -106,19 +106,20 @@ function element(v: string | number | null | undefined): string {
 
 type Cell = string | number | null;
 
-/** The readings columns a push writes, with their Postgres types and how each is read from a row. */
-function readingColumns(now: () => string): [name: string, type: string, get: (r: ReadingInsert) => Cell][] {
-  // A timestamp shared by many rows (the receipt time) is formatted once.
-  let lastDate: unknown = null;
-  let lastIso = '';
-  const iso = (d: unknown): string | null => {
-    if (!(d instanceof Date)) return null;
-    if (d !== lastDate) {
-      lastDate = d;
-      lastIso = d.toISOString();
-    }
-    return lastIso;
-  };
+/**
+ * The readings columns a push writes: name, the Postgres type sent, how it is read from a row, and how the sent value
+ * becomes the column's (a SQL expression of `v`; plain when absent).
+ */
+type Column = [name: string, type: string, get: (r: ReadingInsert) => Cell, into?: (v: SQL) => SQL];
+
+// Times go as epoch milliseconds (an integer per row) and become timestamptz in the database, whole seconds and the
+// milliseconds apart: to_timestamp computes in floating point, exact for whole seconds over the whole span of device
+// times (0 … year 9999) but not for seconds with a fraction that far out (readings-insert.test.ts checks both
+// databases to the millisecond). An ISO string per row cost more to format than the rest of its column.
+const fromEpochMs = (v: SQL) => sql`(to_timestamp(${v} / 1000) + (${v} % 1000) * interval '1 millisecond')`;
+const epochMs = (d: unknown): number | null => (d instanceof Date ? d.getTime() : null);
+
+function readingColumns(now: () => number): Column[] {
   return [
     ['id', 'uuid', (r) => r.id],
     ['run_id', 'uuid', (r) => r.runId],
@@ -129,8 +130,8 @@ function readingColumns(now: () => string): [name: string, type: string, get: (r
     ['mv', 'float8', (r) => r.mV ?? null],
     ['replaces_id', 'uuid', (r) => r.replacesId ?? null],
     ['reason', 'text', (r) => r.reason ?? null],
-    ['device_recorded_at', 'timestamptz', (r) => iso(r.deviceRecordedAt)],
-    ['received_at', 'timestamptz', (r) => iso(r.receivedAt) ?? now()],
+    ['device_recorded_at', 'int8', (r) => epochMs(r.deviceRecordedAt), fromEpochMs],
+    ['received_at', 'int8', (r) => epochMs(r.receivedAt) ?? now(), fromEpochMs],
     ['payload_hash', 'text', (r) => r.payloadHash ?? null],
   ];
 }
@@ -155,14 +156,16 @@ export async function insertReadingsIgnoringExisting(tx: Executor, rows: Reading
   const names: string[] = [];
   const selected: SQL[] = [];
   let ids = '';
-  for (const [name, type, get] of readingColumns(() => new Date().toISOString())) {
+  const at = Date.now();
+  for (const [name, type, get, into] of readingColumns(() => at)) {
     const head = get(rows[0]);
     // Most columns of a push are the same on every row (run, lab, kind, receipt time…): found so first, before any
     // array literal is written, they cost one comparison per row and no text.
     let uniform = name !== 'id';
     for (let i = 1; uniform && i < rows.length; i++) uniform = get(rows[i]) === head;
     if (uniform) {
-      selected.push(sql`${head}::${sql.raw(type)}`);
+      const value = sql`${head}::${sql.raw(type)}`;
+      selected.push(into ? into(value) : value);
     } else {
       // Joined once (a string built by += is a chain of pieces to walk and collect).
       const parts = new Array<string>(rows.length);
@@ -171,10 +174,11 @@ export async function insertReadingsIgnoringExisting(tx: Executor, rows: Reading
       if (name === 'id') ids = literal;
       arrays.push(sql`${literal}::${sql.raw(type)}[]`);
       names.push(name);
-      selected.push(sql.raw(`u.${name}`));
+      const value = sql.raw(`u.${name}`);
+      selected.push(into ? into(value) : value);
     }
   }
-  const columns = sql.raw(readingColumns(() => '').map(([name]) => name).join(', '));
+  const columns = sql.raw(readingColumns(() => 0).map(([name]) => name).join(', '));
   // No RETURNING: the command's row count says whether every row went in (a push's usual case); 10,000 returned
   // rows cost more to send and read than the check below, which runs only when some id was already taken.
   const res = await tx.execute(sql`

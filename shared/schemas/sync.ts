@@ -201,13 +201,15 @@ export function quickChange(v: unknown): Change | undefined {
 }
 
 /**
- * Changes in one push at most. 5,000 readings make a body of about 1 MB (under the 2 MB limit) and one transaction
- * of about half a second on PGlite. Fewer, larger pushes spare each push's fixed work (lock, run lookup, device row,
- * commit; HTTP and the session check): against 2,000, the sync bench's median push time went 1.00 → 0.78 s and its
- * ratio 2.54 → 2.31 (6 alternating runs each, loaded machine, 2026-12-02). A cached client sending 2,000 at most is
- * still taken; a device facing an older server falls back to MAX_BATCH_BEFORE (src/sync/engine.ts).
+ * Changes in one push at most. The body limit (PUSH_BYTES_BUDGET) usually ends a push of readings first: the device
+ * counts each reading at its bound (READING_BYTES, src/sync/engine.ts), ~6,300 a push; at about 200 bytes each that is
+ * a body of ~1.3 MB and one transaction of about a third of a second on PGlite. Fewer, larger pushes spare each push's
+ * fixed work (lock, run lookup, device row, commit; HTTP and the session check): 2,000 → 5,000 took the sync bench's
+ * median 1.00 → 0.78 s (6 alternating runs each, loaded machine, 2026-12-02); 10,000 sends a run and its 10,000
+ * readings in two pushes instead of three. A cached client sending fewer is still taken; a device facing an older
+ * server that refuses more falls back to MAX_BATCH_BEFORE (src/sync/engine.ts).
  */
-export const MAX_BATCH = 5000;
+export const MAX_BATCH = 10_000;
 /** What servers took before MAX_BATCH was raised: a device refused a longer push (400) goes again with this many. */
 export const MAX_BATCH_BEFORE = 2000;
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { API_BODY_LIMIT_BYTES, MAX_BATCH, MAX_BATCH_BEFORE, type PushRequest, type PushResponse } from '../../shared/schemas/sync';
+import { API_BODY_LIMIT_BYTES, MAX_BATCH, MAX_BATCH_BEFORE, PUSH_BYTES_BUDGET, type PushRequest, type PushResponse } from '../../shared/schemas/sync';
 import { describeSync } from './describe';
 import { READING_BYTES, SyncEngine, TransportError, type SyncTransport } from './engine';
 import { MemoryDevice } from './memoryStore';
@@ -57,7 +57,7 @@ describe('sync engine', () => {
     expect(e.status.state).toBe('synced');
   });
 
-  it('keeps each push under the API body limit: long notes go in several pushes, readings MAX_BATCH at a time', async () => {
+  it('keeps each push under the API body limit: long notes go in several pushes, readings as many as fit', async () => {
     const dev = new MemoryDevice('u1');
     const run = dev.createRun(LAB);
     // 300 offline edits of 19,000 three-byte characters (~17 MB in all; notes take up to 20,000 characters).
@@ -69,10 +69,14 @@ describe('sync engine', () => {
     const bodies = pushes.map((p) => Buffer.byteLength(JSON.stringify(p)));
     expect(Math.max(...bodies)).toBeLessThanOrEqual(API_BODY_LIMIT_BYTES);
     expect(pushes.length).toBeGreaterThanOrEqual(9);
-    // The readings after the notes: the push that starts with them carries MAX_BATCH of them (or the rest of them
-    // after those that fitted beside the last notes).
+    // The readings after the notes: all of them go, each push of readings only as full as the budget allows at a
+    // reading's bound (nothing is cut short of it), never more than MAX_BATCH.
     expect(pushes.flatMap((p) => p.changes).filter((c) => c.kind === 'reading').length).toBe(MAX_BATCH);
-    expect(pushes.filter((p) => p.changes.every((c) => c.kind === 'reading')).length).toBeLessThanOrEqual(1);
+    const onlyReadings = pushes.filter((p) => p.changes.every((c) => c.kind === 'reading')).map((p) => p.changes.length);
+    const fit = Math.min(MAX_BATCH, Math.floor(PUSH_BYTES_BUDGET / READING_BYTES));
+    expect(onlyReadings.slice(0, -1).every((n) => n === fit)).toBe(true);
+    expect(onlyReadings.length).toBeGreaterThanOrEqual(1);
+    expect(onlyReadings.at(-1)!).toBeLessThanOrEqual(fit);
     expect(dev.outbox.every((o) => o.state === 'acked')).toBe(true);
     expect(e.status.state).toBe('synced');
   });
