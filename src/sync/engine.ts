@@ -117,8 +117,10 @@ export class SyncEngine {
     opts: EngineOptions = {},
   ) {
     this.o = {
-      // Each reading's mark has an outbox row of its own that never goes out: twice MAX_BATCH rows fill one push.
-      batchSize: 2 * MAX_BATCH,
+      // Each reading's mark has an outbox row of its own that never goes out: twice the readings one push can carry
+      // (the body budget at a reading's bound ends a push before MAX_BATCH does) fill one. Rows read beyond what a
+      // push takes are decoded for nothing (their payloads are JSON in the store).
+      batchSize: 2 * READINGS_PER_PUSH + 1,
       maxChanges: MAX_BATCH,
       pull: true,
       pullLimit: 1000,
@@ -327,6 +329,8 @@ export class SyncEngine {
  * 300 bytes), so it is not written out to be counted; anything else may carry long text (notes, reasons).
  */
 export const READING_BYTES = 320;
+/** Readings one push can carry: the body budget at each reading's bound, or MAX_BATCH. */
+const READINGS_PER_PUSH = Math.min(MAX_BATCH, Math.floor(PUSH_BYTES_BUDGET / READING_BYTES));
 function bytesOf(c: Change): number {
   return c.kind === 'reading' ? READING_BYTES : utf8Length(JSON.stringify(c));
 }
