@@ -116,6 +116,40 @@ describe('sync engine', () => {
     expect(e.status.state).toBe('synced');
   });
 
+  it('a proxy with a lower body limit (413): pushes shrink until they pass; a row too large alone is rejected, the rest go', async () => {
+    const dev = new MemoryDevice('u1');
+    const run = dev.createRun(LAB);
+    for (let i = 0; i < 300; i++) dev.addReading(run.id, i, 4);
+    // Notes of 30,000 bytes: over the proxy's 20,000 on their own.
+    dev.editNotes(run.id, 'n'.repeat(30_000));
+    for (let i = 300; i < 600; i++) dev.addReading(run.id, i, 4);
+    const { t, pushes } = fakeServer();
+    const LIMIT = 20_000;
+    let refused = 0;
+    const behindProxy: SyncTransport = {
+      ...t,
+      push: async (req) => {
+        if (Buffer.byteLength(JSON.stringify(req)) > LIMIT) {
+          refused++;
+          throw new TransportError('client', 'HTTP 413', 413);
+        }
+        return t.push(req);
+      },
+    };
+    const e = new SyncEngine(dev, behindProxy, noTimers);
+    await e.sync();
+    expect(refused).toBeGreaterThan(0);
+    expect(pushes.every((p) => Buffer.byteLength(JSON.stringify(p)) <= LIMIT)).toBe(true);
+    // Every reading arrived once; the notes edit waits on the device, rejected with the reason.
+    const sent = pushes.flatMap((p) => p.changes).filter((c) => c.kind === 'reading').map((c) => c.id);
+    expect(sent.length).toBe(600);
+    expect(new Set(sent).size).toBe(600);
+    const notes = dev.outbox.find((o) => o.entity === 'run' && o.op === 'update')!;
+    expect(notes.state).toBe('rejected');
+    expect(notes.lastError).toMatch(/Too large for the server/);
+    expect(dev.outbox.filter((o) => o !== notes).every((o) => o.state === 'acked')).toBe(true);
+  });
+
   it('a rejected change is kept with its reason and does not block the rest', async () => {
     const dev = new MemoryDevice('u1');
     const run = dev.createRun(LAB);

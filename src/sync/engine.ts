@@ -105,6 +105,8 @@ export class SyncEngine {
   private failures = 0;
   /** Changes per push now: maxChanges, or fewer once a server took only as many as servers before MAX_BATCH did. */
   private maxChanges: number;
+  /** UTF-8 bytes of changes per push now: PUSH_BYTES_BUDGET, or less once something on the way refused a body (413). */
+  private bytesBudget = PUSH_BYTES_BUDGET;
   private timer: unknown = null;
   private unOnline: (() => void) | null = null;
   private listeners = new Set<(s: SyncStatus) => void>();
@@ -255,9 +257,10 @@ export class SyncEngine {
         if (m.kind === 'local-only') local.push({ seq: row.seq, state: 'acked' });
         else if (m.kind === 'invalid') local.push({ seq: row.seq, state: 'rejected', reason: m.reason });
         else {
-          if (changes.length + m.changes.length > this.maxChanges) break;
+          // The first row always goes (a row has up to SLOTS changes; a limit below that must not stall the queue).
+          if (changes.length && changes.length + m.changes.length > this.maxChanges) break;
           const rowBytes = m.changes.reduce((n, c) => n + bytesOf(c), 0);
-          if (changes.length && bytes + rowBytes > PUSH_BYTES_BUDGET) break;
+          if (changes.length && bytes + rowBytes > this.bytesBudget) break;
           bytes += rowBytes;
           for (const c of m.changes) changes.push(c);
           send.push(row);
@@ -276,6 +279,20 @@ export class SyncEngine {
         // A server from before MAX_BATCH was raised refuses a longer push as a bad request: go again at its size.
         if (err instanceof TransportError && err.status === 400 && changes.length > MAX_BATCH_BEFORE) {
           this.maxChanges = MAX_BATCH_BEFORE;
+          continue;
+        }
+        // Too large for the server or a proxy before it (a lower body limit than ours): halve the pushes until they
+        // pass. A single row refused on its own can never pass there: rejected with the reason, the queue goes on.
+        if (err instanceof TransportError && err.status === 413) {
+          if (send.length > 1) {
+            this.bytesBudget = Math.max(1, Math.floor(bytes / 2));
+            this.maxChanges = Math.max(1, Math.floor(changes.length / 2));
+          } else {
+            await this.store.settle([
+              ...local,
+              { seq: send[0].seq, state: 'rejected', reason: `Too large for the server to take (${err.message}); it stays on this device.` },
+            ]);
+          }
           continue;
         }
         throw err;
