@@ -6,9 +6,10 @@ import { labs, readings, runs, users } from '../../db/schema';
 import { closeTemplate, testDatabase } from '../testing/db';
 import { insertReadingsIgnoringExisting, type ReadingInsert } from './sync';
 
-// The readings insert sends times as epoch milliseconds and lets the database make them timestamptz
-// (to_timestamp(ms / 1000)). These checks need no outside values: what goes in must come back to the millisecond,
-// on PGlite and on the PostgreSQL server of CI's parity run alike.
+// The readings insert sends times as epoch milliseconds and lets the database make them timestamptz (whole seconds
+// through to_timestamp, the milliseconds added as an interval; ms / 1000 in one go came back a millisecond off for far
+// dates). These checks need no outside values: what goes in must come back to the millisecond, on PGlite and on the
+// PostgreSQL server of CI's parity run alike.
 
 let database: Database;
 let labId: string;

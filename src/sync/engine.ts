@@ -290,7 +290,7 @@ export class SyncEngine {
           } else {
             await this.store.settle([
               ...local,
-              { seq: send[0].seq, state: 'rejected', reason: `Too large for the server to take (${err.message}); it stays on this device.` },
+              { seq: send[0].seq, state: 'rejected', reason: 'Too large for the server to take in one request (HTTP 413); it stays on this device.' },
             ]);
           }
           continue;
