@@ -11,6 +11,8 @@ function fakeServer(
   opts: {
     reject?: (c: PushRequest['changes'][number]) => string | null;
     fail?: () => TransportError | null;
+    /** Refuses a request before the server sees it (an older server's limit, a proxy's); counted in `refused`. */
+    refuse?: (req: PushRequest) => TransportError | null;
     /** Answer every change (as a server does without `answer: 'exceptions'`) instead of only the exceptions. */
     full?: boolean;
     /** Spoils the answer after it is made (a server bug or a mixed-up reply). */
@@ -18,10 +20,16 @@ function fakeServer(
   } = {},
 ) {
   const pushes: PushRequest[] = [];
+  const counts = { refused: 0 };
   const t: SyncTransport = {
     async push(req) {
       const err = opts.fail?.();
       if (err) throw err;
+      const refusal = opts.refuse?.(req);
+      if (refusal) {
+        counts.refused++;
+        throw refusal;
+      }
       pushes.push(req);
       const all = req.changes.map((c) => {
         const why = opts.reject?.(c) ?? null;
@@ -36,7 +44,7 @@ function fakeServer(
       return { changes: [], cursor, more: false };
     },
   };
-  return { t, pushes };
+  return { t, pushes, counts };
 }
 const noTimers = { setTimer: () => null, clearTimer: () => {} };
 
@@ -96,21 +104,12 @@ describe('sync engine', () => {
     const dev = new MemoryDevice('u1');
     const run = dev.createRun(LAB);
     for (let i = 0; i < MAX_BATCH_BEFORE + 500; i++) dev.addReading(run.id, i, 4);
-    const { t, pushes } = fakeServer();
-    let refused = 0;
-    const older: SyncTransport = {
-      ...t,
-      push: async (req) => {
-        if (req.changes.length > MAX_BATCH_BEFORE) {
-          refused++;
-          throw new TransportError('client', 'changes: Too big: expected array to have <=2000 items', 400);
-        }
-        return t.push(req);
-      },
-    };
-    const e = new SyncEngine(dev, older, noTimers);
+    const { t, pushes, counts } = fakeServer({
+      refuse: (req) => (req.changes.length > MAX_BATCH_BEFORE ? new TransportError('client', 'changes: Too big: expected array to have <=2000 items', 400) : null),
+    });
+    const e = new SyncEngine(dev, t, noTimers);
     await e.sync();
-    expect(refused).toBe(1);
+    expect(counts.refused).toBe(1);
     expect(pushes.map((p) => p.changes.length)).toEqual([MAX_BATCH_BEFORE, 501]);
     expect(dev.outbox.every((o) => o.state === 'acked')).toBe(true);
     expect(e.status.state).toBe('synced');
@@ -123,22 +122,13 @@ describe('sync engine', () => {
     // Notes of 30,000 bytes: over the proxy's 20,000 on their own.
     dev.editNotes(run.id, 'n'.repeat(30_000));
     for (let i = 300; i < 600; i++) dev.addReading(run.id, i, 4);
-    const { t, pushes } = fakeServer();
     const LIMIT = 20_000;
-    let refused = 0;
-    const behindProxy: SyncTransport = {
-      ...t,
-      push: async (req) => {
-        if (Buffer.byteLength(JSON.stringify(req)) > LIMIT) {
-          refused++;
-          throw new TransportError('client', 'HTTP 413', 413);
-        }
-        return t.push(req);
-      },
-    };
-    const e = new SyncEngine(dev, behindProxy, noTimers);
+    const { t, pushes, counts } = fakeServer({
+      refuse: (req) => (Buffer.byteLength(JSON.stringify(req)) > LIMIT ? new TransportError('client', 'HTTP 413', 413) : null),
+    });
+    const e = new SyncEngine(dev, t, noTimers);
     await e.sync();
-    expect(refused).toBeGreaterThan(0);
+    expect(counts.refused).toBeGreaterThan(0);
     expect(pushes.every((p) => Buffer.byteLength(JSON.stringify(p)) <= LIMIT)).toBe(true);
     // Every reading arrived once; the notes edit waits on the device, rejected with the reason.
     const sent = pushes.flatMap((p) => p.changes).filter((c) => c.kind === 'reading').map((c) => c.id);
