@@ -6,7 +6,7 @@ import type { Database } from '../db/client';
 import { apiRouter } from './api';
 import { createServerContext, type AuthOptions, type ServerContext } from './auth/context';
 import { errorHandler, unknownApiRoute } from './http/errors';
-import { API_BODY_LIMIT_BYTES } from '../shared/schemas/sync';
+import { API_BODY_LIMIT_BYTES, PUSH_BODY_LIMIT_BYTES } from '../shared/schemas/sync';
 
 export interface AppDeps {
   database: Database;
@@ -55,9 +55,11 @@ export function createApp(deps: AppDeps): Express {
 
   const context = createServerContext({ ...deps, log });
   app.locals.context = context;
-  // A CSV import may be up to 5 MB of text (shared/schemas/desk.ts), sent as JSON; every other body stays under 2 MB.
-  // The first parser to read a body marks it parsed, so the general one then passes it by.
+  // A CSV import may be up to 5 MB of text (shared/schemas/desk.ts), sent as JSON, and a push up to 4 MB of changes;
+  // every other body stays under 2 MB. The first parser to read a body marks it parsed, so the general one then
+  // passes it by.
   app.use('/api/labs/:labId/imports', express.json({ limit: '6mb' }));
+  app.use('/api/sync/push', express.json({ limit: PUSH_BODY_LIMIT_BYTES }));
   app.use('/api', express.json({ limit: API_BODY_LIMIT_BYTES }), apiRouter({ ...deps, log }, context), unknownApiRoute);
 
   if (deps.webDir && existsSync(deps.webDir)) {

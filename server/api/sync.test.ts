@@ -3,6 +3,7 @@ import type { Server } from 'node:http';
 import { v7 } from 'uuid';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { authFixture, type AuthFixture } from '../auth/test-fixture';
+import { API_BODY_LIMIT_BYTES, PUSH_BODY_LIMIT_BYTES } from '../../shared/schemas/sync';
 import { liveHub } from '../services/live';
 import { closeTemplate } from '../testing/db';
 
@@ -108,6 +109,26 @@ describe('sync over HTTP', () => {
     const odd = await fx.api().post('/api/sync/push').set(await auth('analyst')).send({ ...body, answer: 'some' });
     expect(odd.status).toBe(400);
   });
+
+  it('a push may carry a body up to its own limit (4 MB), above the 2 MB of other routes; beyond it is a 413', async () => {
+    const runId = v7();
+    const n = 12_000;
+    const changes = [
+      { id: runId, kind: 'run', seq: 1, recordedAt: Date.now(), payload: { labId: fx.labA.id, sampleName: 'large push demo run' } },
+      ...Array.from({ length: n }, (_, i) => ({ id: v7(), kind: 'reading', seq: i + 2, recordedAt: Date.now(), payload: { runId, timeS: i / 2, pH: 3 + (i % 900) / 100 } })),
+    ];
+    const body = { deviceId: v7(), sentAt: Date.now(), changes, answer: 'exceptions' };
+    const size = Buffer.byteLength(JSON.stringify(body));
+    expect(size).toBeGreaterThan(API_BODY_LIMIT_BYTES);
+    expect(size).toBeLessThan(PUSH_BODY_LIMIT_BYTES);
+    const res = await fx.api().post('/api/sync/push').set(await auth('analyst')).send(body);
+    expect(res.status, JSON.stringify(res.body).slice(0, 300)).toBe(200);
+    expect(res.body).toMatchObject({ results: [], acceptedUnlisted: n + 1, lastSeq: n + 1 });
+    const stored = await fx.database.query<{ n: number }>('select count(*)::int as n from readings where run_id = $1', [runId]);
+    expect(stored[0].n).toBe(n);
+    const tooBig = await fx.api().post('/api/sync/push').set(await auth('analyst')).send({ ...body, deviceId: v7(), junk: 'x'.repeat(PUSH_BODY_LIMIT_BYTES - size + 1) });
+    expect(tooBig.status).toBe(413);
+  }, 60_000);
 
   it('live follow: a colleague (viewer) sees readings pushed after they opened the stream', async () => {
     const { runId, deviceId, seq, ids: before } = await pushRun(3);
