@@ -106,11 +106,13 @@ function element(v: string | number | null | undefined): string {
 
 type Cell = string | number | null;
 
+/** The readings columns a push writes. */
+export type ReadingField = 'id' | 'run_id' | 'lab_id' | 'kind' | 'time_s' | 'ph' | 'mv' | 'replaces_id' | 'reason' | 'device_recorded_at' | 'received_at' | 'payload_hash';
 /**
- * The readings columns a push writes: name, the Postgres type sent, how it is read from a row, and how the sent value
- * becomes the column's (a SQL expression of `v`; plain when absent).
+ * The readings to insert, column by column: a column is one value for every row, or row i's value. Times are epoch
+ * milliseconds (see fromEpochMs).
  */
-type Column = [name: string, type: string, get: (r: ReadingInsert) => Cell, into?: (v: SQL) => SQL];
+export type ReadingCells = Record<ReadingField, Cell | ((i: number) => Cell)>;
 
 // Times go as epoch milliseconds (an integer per row) and become timestamptz in the database, whole seconds and the
 // milliseconds apart: to_timestamp computes in floating point, exact for whole seconds over the whole span of device
@@ -119,21 +121,43 @@ type Column = [name: string, type: string, get: (r: ReadingInsert) => Cell, into
 const fromEpochMs = (v: SQL) => sql`(to_timestamp(${v} / 1000) + (${v} % 1000) * interval '1 millisecond')`;
 const epochMs = (d: unknown): number | null => (d instanceof Date ? d.getTime() : null);
 
-function readingColumns(now: () => number): Column[] {
-  return [
-    ['id', 'uuid', (r) => r.id],
-    ['run_id', 'uuid', (r) => r.runId],
-    ['lab_id', 'uuid', (r) => r.labId],
-    ['kind', 'text', (r) => r.kind ?? 'reading'],
-    ['time_s', 'float8', (r) => r.timeS],
-    ['ph', 'float8', (r) => r.pH ?? null],
-    ['mv', 'float8', (r) => r.mV ?? null],
-    ['replaces_id', 'uuid', (r) => r.replacesId ?? null],
-    ['reason', 'text', (r) => r.reason ?? null],
-    ['device_recorded_at', 'int8', (r) => epochMs(r.deviceRecordedAt), fromEpochMs],
-    ['received_at', 'int8', (r) => epochMs(r.receivedAt) ?? now(), fromEpochMs],
-    ['payload_hash', 'text', (r) => r.payloadHash ?? null],
-  ];
+/** Each column: name, the Postgres type sent, and how the sent value becomes the column's (an SQL expression of `v`). */
+const READING_COLUMNS: [name: ReadingField, type: string, into?: (v: SQL) => SQL][] = [
+  ['id', 'uuid'],
+  ['run_id', 'uuid'],
+  ['lab_id', 'uuid'],
+  ['kind', 'text'],
+  ['time_s', 'float8'],
+  ['ph', 'float8'],
+  ['mv', 'float8'],
+  ['replaces_id', 'uuid'],
+  ['reason', 'text'],
+  ['device_recorded_at', 'int8', fromEpochMs],
+  ['received_at', 'int8', fromEpochMs],
+  ['payload_hash', 'text'],
+];
+
+/** Rows as columns (each read per row; the insert finds the ones that are the same on every row). */
+function cellsOfRows(rows: ReadingInsert[], now: number): ReadingCells {
+  return {
+    id: (i) => rows[i].id!,
+    run_id: (i) => rows[i].runId,
+    lab_id: (i) => rows[i].labId,
+    kind: (i) => rows[i].kind ?? 'reading',
+    time_s: (i) => rows[i].timeS,
+    ph: (i) => rows[i].pH ?? null,
+    mv: (i) => rows[i].mV ?? null,
+    replaces_id: (i) => rows[i].replacesId ?? null,
+    reason: (i) => rows[i].reason ?? null,
+    device_recorded_at: (i) => epochMs(rows[i].deviceRecordedAt),
+    received_at: (i) => epochMs(rows[i].receivedAt) ?? now,
+    payload_hash: (i) => rows[i].payloadHash ?? null,
+  };
+}
+
+/** See insertReadingCells. */
+export async function insertReadingsIgnoringExisting(tx: Executor, rows: ReadingInsert[]): Promise<Inserted> {
+  return insertReadingCells(tx, rows.length, cellsOfRows(rows, Date.now()));
 }
 
 /**
@@ -145,31 +169,35 @@ function readingColumns(now: () => number): Column[] {
  * reserved as one block (one setval instead of a nextval per row) and handed out by row order; a row that was
  * already stored leaves its place unused, a gap pulls step over like any other.
  */
-export async function insertReadingsIgnoringExisting(tx: Executor, rows: ReadingInsert[]): Promise<Inserted> {
-  if (!rows.length) return { has: () => false, maxSeq: null };
+export async function insertReadingCells(tx: Executor, n: number, cells: ReadingCells): Promise<Inserted> {
+  if (!n) return { has: () => false, maxSeq: null };
   const reserved = await tx.execute<{ last: string | number }>(sql`
     with sync_lock as (select pg_advisory_xact_lock(${SYNC_LOCK}))
-    select setval('sync_changes_seq_seq', nextval('sync_changes_seq_seq') + ${rows.length - 1}) as last from sync_lock`);
+    select setval('sync_changes_seq_seq', nextval('sync_changes_seq_seq') + ${n - 1}) as last from sync_lock`);
   const last = Number(rowsOf<{ last: string | number }>(reserved)[0].last);
-  const first = last - rows.length + 1;
+  const first = last - n + 1;
   const arrays: SQL[] = [];
   const names: string[] = [];
   const selected: SQL[] = [];
   let ids = '';
-  const at = Date.now();
-  for (const [name, type, get, into] of readingColumns(() => at)) {
-    const head = get(rows[0]);
+  for (const [name, type, into] of READING_COLUMNS) {
+    const cell = cells[name];
+    let one = typeof cell !== 'function';
+    const get = typeof cell === 'function' ? cell : () => cell;
+    const head = get(0);
     // Most columns of a push are the same on every row (run, lab, kind, receipt time…): found so first, before any
     // array literal is written, they cost one comparison per row and no text.
-    let uniform = name !== 'id';
-    for (let i = 1; uniform && i < rows.length; i++) uniform = get(rows[i]) === head;
-    if (uniform) {
+    if (!one && name !== 'id') {
+      one = true;
+      for (let i = 1; one && i < n; i++) one = get(i) === head;
+    }
+    if (one && name !== 'id') {
       const value = sql`${head}::${sql.raw(type)}`;
       selected.push(into ? into(value) : value);
     } else {
       // Joined once (a string built by += is a chain of pieces to walk and collect).
-      const parts = new Array<string>(rows.length);
-      for (let i = 0; i < rows.length; i++) parts[i] = element(get(rows[i]));
+      const parts = new Array<string>(n);
+      for (let i = 0; i < n; i++) parts[i] = element(get(i));
       const literal = `{${parts.join(',')}}`;
       if (name === 'id') ids = literal;
       arrays.push(sql`${literal}::${sql.raw(type)}[]`);
@@ -178,7 +206,7 @@ export async function insertReadingsIgnoringExisting(tx: Executor, rows: Reading
       selected.push(into ? into(value) : value);
     }
   }
-  const columns = sql.raw(readingColumns(() => 0).map(([name]) => name).join(', '));
+  const columns = sql.raw(READING_COLUMNS.map(([name]) => name).join(', '));
   // No RETURNING: the command's row count says whether every row went in (a push's usual case); 10,000 returned
   // rows cost more to send and read than the check below, which runs only when some id was already taken.
   const res = await tx.execute(sql`
@@ -186,10 +214,10 @@ export async function insertReadingsIgnoringExisting(tx: Executor, rows: Reading
     select ${sql.join(selected, sql`, `)}, ${first - 1}::int8 + u.place
     from unnest(${sql.join(arrays, sql`, `)}) with ordinality as u(${sql.raw(names.join(', '))}, place)
     on conflict do nothing`);
-  const n = affectedOf(res);
+  const wrote = affectedOf(res);
   // All went in (a push's usual case): no set of thousands of ids to build and look up.
-  if (n === rows.length) return { has: () => true, maxSeq: last };
-  if (!n) return { has: () => false, maxSeq: null };
+  if (wrote === n) return { has: () => true, maxSeq: last };
+  if (!wrote) return { has: () => false, maxSeq: null };
   // Some ids were taken: the new rows are those holding a place of this block (rows stored before hold an older
   // place, or none).
   const fresh = rowsOf<{ id: string; seq: string | number }>(

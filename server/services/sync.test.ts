@@ -8,6 +8,7 @@ import { CLOCK_FLAG_MS, payloadSchemas, pushRequestSchema } from '../../shared/s
 import { closeTemplate, testDatabase } from '../testing/db';
 import fc from 'fast-check';
 import { canonicalJson, payloadHash, pull, push, readingCanonicalJson } from './sync';
+import { packPush } from '../../src/sync/engine';
 import { fakeDevice, syncWorld } from './sync.testkit';
 
 let database: Database;
@@ -246,6 +247,106 @@ describe('replays of one batch', () => {
     for (const res of all) expect(res.results.every((r) => r.outcome === 'accepted' || r.outcome === 'duplicate')).toBe(true);
     expect(await rowsPerId(ids)).toBe(50);
     expect((await database.db.select().from(runs).where(eq(runs.id, runId))).length).toBe(1);
+  });
+});
+
+describe('readings in blocks', () => {
+  /** A run and its readings: the run as a change, the readings as one block (as a device sends them). */
+  async function blockBatch(n: number, values = (i: number) => ({ timeS: i, pH: 3 + i / 100 })) {
+    const analyst = await w.member(w.labA.id, 'analyst');
+    const dev = fakeDevice();
+    const run = dev.change('run', runPayload(w.labA.id));
+    const rs = Array.from({ length: n }, (_, i) => dev.change('reading', Object.assign({ runId: run.id, mV: null, pH: null }, values(i))));
+    const packed = packPush([run, ...rs]);
+    return { analyst, dev, run, rs, req: { deviceId: dev.id, sentAt: Date.now(), ...packed } };
+  }
+
+  it('stores the same rows as one by one: answered per reading in request order, a replay either way "duplicate"', async () => {
+    const { analyst, dev, run, rs, req } = await blockBatch(30);
+    expect(req.changes.map((c) => c.id)).toEqual([run.id]);
+    expect(req.readings).toHaveLength(1);
+    const res = await push(w.deps, analyst, req);
+    expect(res.results.map((r) => [r.id, r.outcome])).toEqual([run, ...rs].map((c) => [c.id, 'accepted']));
+    expect(res.lastSeq).toBe(rs.at(-1)!.seq);
+    const rows = await database.db.select().from(readings).where(inArray(readings.id, rs.map((r) => r.id)));
+    expect(rows).toHaveLength(30);
+    for (const r of rs) {
+      const row = rows.find((x) => x.id === r.id)!;
+      const p = r.payload as { timeS: number; pH: number };
+      expect(row).toMatchObject({ runId: run.id, labId: w.labA.id, kind: 'reading', timeS: p.timeS, pH: p.pH, mV: null, payloadHash: payloadHash('reading', p as never) });
+      expect(row.deviceRecordedAt?.getTime()).toBe(r.recordedAt);
+    }
+    // The same readings one by one, and the block again: already there.
+    const oneByOne = await push(w.deps, analyst, dev.batch([run, ...rs]));
+    expect(oneByOne.results.every((r) => r.outcome === 'duplicate')).toBe(true);
+    const again = await push(w.deps, analyst, { ...req, answer: 'exceptions' });
+    expect(again.results.map((r) => r.outcome)).toEqual(Array(31).fill('duplicate'));
+    expect(again.acceptedUnlisted).toBe(0);
+    // A different value under a stored id, in a block: 409, the stored row untouched.
+    const changed = packPush([{ ...rs[3], payload: { ...(rs[3].payload as object), pH: 9.99 } }]);
+    const clash = await push(w.deps, analyst, { deviceId: dev.id, sentAt: Date.now(), ...changed });
+    expect(clash.results).toMatchObject([{ id: rs[3].id, outcome: 'conflict', status: 409 }]);
+    const [kept] = await database.db.select().from(readings).where(eq(readings.id, rs[3].id));
+    expect(kept.pH).toBe((rs[3].payload as { pH: number }).pH);
+  });
+
+  it('answers each reading for itself: bad values rejected with the reason, the rest of the block stored', async () => {
+    const bad: Record<number, object> = { 2: { pH: 42 }, 5: { pH: null, mV: null }, 7: { timeS: -1 }, 8: { mV: 2500 } };
+    const { analyst, rs, req } = await blockBatch(10, (i) => ({ timeS: i, pH: 4 + i / 10, ...bad[i] }));
+    const res = await push(w.deps, analyst, { ...req, answer: 'exceptions' });
+    expect(res.results.map((r) => [r.id, r.outcome, r.status])).toEqual([2, 5, 7, 8].map((i) => [rs[i].id, 'rejected', 422]));
+    expect(res.results[0].reason).toMatch(/pH/);
+    expect(res.results[1].reason).toMatch(/pH or an mV/);
+    expect(res.results[2].reason).toMatch(/timeS/);
+    expect(res.results[3].reason).toMatch(/mV/);
+    expect(res.acceptedUnlisted).toBe(7);
+    const stored = await database.db.select({ id: readings.id }).from(readings).where(inArray(readings.id, rs.map((r) => r.id)));
+    expect(stored.map((r) => r.id).sort()).toEqual(rs.filter((_, i) => !bad[i]).map((r) => r.id).sort());
+  });
+
+  it('refuses a block on a run the caller may not write or the server does not have, and readings under passed numbers', async () => {
+    const { analyst, run, req } = await blockBatch(3);
+    await push(w.deps, analyst, { ...req, readings: undefined });
+    // A colleague's device sends readings for that run; another device sends a run the server never saw.
+    const colleague = await w.member(w.labA.id, 'analyst');
+    const d2 = fakeDevice();
+    const theirs = packPush([1, 2].map((t) => d2.change('reading', { runId: run.id, timeS: t, pH: 5, mV: null })));
+    const denied = await push(w.deps, colleague, { deviceId: d2.id, sentAt: Date.now(), ...theirs });
+    expect(denied.results.map((r) => [r.outcome, r.status])).toEqual([['rejected', 403], ['rejected', 403]]);
+    const d3 = fakeDevice();
+    const orphan = packPush([1, 2, 3].map((t) => d3.change('reading', { runId: v7(), timeS: t, pH: 5, mV: null })));
+    const unknown = await push(w.deps, analyst, { deviceId: d3.id, sentAt: Date.now(), ...orphan });
+    expect(unknown.results.map((r) => r.status)).toEqual([404, 404, 404]);
+    expect(new Set(unknown.results.map((r) => r.id)).size).toBe(3);
+    // The first push's device has passed seq 1 (its run): new readings numbered at or below it are out of order.
+    const late = packPush([{ id: v7(), kind: 'reading', seq: 1, recordedAt: Date.now(), payload: { runId: run.id, timeS: 9, pH: 5, mV: null } }]);
+    const res = await push(w.deps, analyst, { deviceId: req.deviceId, sentAt: Date.now(), ...late });
+    expect(res.results).toMatchObject([{ outcome: 'out_of_order', status: 409 }]);
+    // Its readings, sent now, go in.
+    const ok = await push(w.deps, analyst, { ...req, changes: [] });
+    expect(ok.results.map((r) => r.outcome)).toEqual(['accepted', 'accepted', 'accepted']);
+  });
+
+  it('six pushes of the same block started at once: exactly one row per id, each accepted by one push only', async () => {
+    const { analyst, rs, req } = await blockBatch(50);
+    const all = await Promise.all(Array.from({ length: 6 }, () => push(w.deps, analyst, req)));
+    const acceptedPerId = new Map<string, number>();
+    for (const res of all) for (const r of res.results) if (r.outcome === 'accepted') acceptedPerId.set(r.id, (acceptedPerId.get(r.id) ?? 0) + 1);
+    expect(acceptedPerId.size).toBe(51);
+    expect([...acceptedPerId.values()].every((k) => k === 1)).toBe(true);
+    for (const res of all) expect(res.results.every((r) => r.outcome === 'accepted' || r.outcome === 'duplicate')).toBe(true);
+    expect((await database.db.select({ n: count() }).from(readings).where(inArray(readings.id, rs.map((r) => r.id))))[0].n).toBe(50);
+  });
+
+  it('the envelope: a sequence number used twice in a push, or columns of unequal length, refuse the whole request', async () => {
+    const { run, rs, req } = await blockBatch(3);
+    expect(pushRequestSchema.safeParse(req).success).toBe(true);
+    expect(pushRequestSchema.safeParse({ ...req, changes: [{ ...run, seq: rs[1].seq }] }).success).toBe(false);
+    const b = req.readings![0];
+    expect(pushRequestSchema.safeParse({ ...req, readings: [{ ...b, pH: b.pH.slice(1) }] }).success).toBe(false);
+    expect(pushRequestSchema.safeParse({ ...req, readings: [{ ...b, seqs: [...b.seqs].reverse() }] }).success).toBe(false);
+    expect(pushRequestSchema.safeParse({ ...req, readings: [b, b] }).success).toBe(false);
+    expect(pushRequestSchema.safeParse({ ...req, changes: [], readings: [] }).success).toBe(false);
   });
 });
 

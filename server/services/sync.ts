@@ -2,7 +2,9 @@ import crypto from 'node:crypto';
 import type { z } from 'zod';
 import {
   CLOCK_FLAG_MS,
+  changeCount,
   parsePayload,
+  readingValuesOk,
   payloadSchemas,
   type Change,
   type ChangeResult,
@@ -13,6 +15,7 @@ import {
   type PulledChange,
   type PushRequest,
   type PushResponse,
+  type ReadingBlock,
 } from '../../shared/schemas/sync';
 import type { Role } from '../../shared/schemas/roles';
 import type { Database } from '../../db/client';
@@ -97,8 +100,9 @@ export function canonicalJson(value: unknown): string {
  * intermediate strings per reading. Equal to canonicalJson for every parsed reading (sync.test.ts).
  */
 export function readingCanonicalJson(d: Parsed<'reading'>): string {
-  return `{"mV":${d.mV},"pH":${d.pH},"runId":"${d.runId}","timeS":${d.timeS}}`;
+  return readingValuesJson(d.runId, d.timeS, d.pH, d.mV);
 }
+const readingValuesJson = (runId: string, timeS: number, pH: number | null, mV: number | null) => `{"mV":${mV},"pH":${pH},"runId":"${runId}","timeS":${timeS}}`;
 
 /** The stored hash of a payload as parsed by its kind's schema. */
 export function payloadHash<K extends EntityKind>(kind: K, payload: Parsed<K>): string {
@@ -146,7 +150,8 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
     const device = await repo.lockDevice(tx, req.deviceId, caller.userId);
     // With answer 'exceptions' a plain acceptance is only counted (null here): no result object per reading.
     const listAll = req.answer !== 'exceptions';
-    const results: (ChangeResult | null)[] = new Array(req.changes.length);
+    // In request order: the changes, then the readings of each block (numbered on from the changes).
+    const results: (ChangeResult | null)[] = new Array(changeCount(req));
     let acceptedUnlisted = 0;
     const log: repo.ChangeLogRow[] = [];
     const touchedRuns = new Set<string>();
@@ -204,6 +209,7 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       if (it.change.kind === 'run') referenced.add(it.change.id);
       else if (d.runId) referenced.add(d.runId);
     }
+    for (const b of req.readings ?? []) referenced.add(b.runId);
     // An approved revision is a signed record: nothing is added to or changed in it until a new revision is opened.
     const locked = new Set<string>();
     for (const r of await repo.runsForPush(tx, [...referenced])) {
@@ -337,6 +343,93 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       pH: d.pH,
       mV: d.mV,
     }));
+    // Readings sent in blocks: the plain new ones go in straight from the columns, with no object per reading; a
+    // reading that is anything else (a bad value, a replay, an id already taken) becomes a change of its own and is
+    // answered as one.
+    let blockStart = req.changes.length;
+    for (const b of req.readings ?? []) {
+      await blockStage(b, blockStart);
+      blockStart += b.ids.length;
+    }
+    async function blockStage(b: ReadingBlock, start: number) {
+      const changeAt = (i: number): Change => ({ id: b.ids[i], kind: 'reading', seq: b.seqs[i], recordedAt: b.recordedAt[i], payload: { runId: b.runId, timeS: b.timeS[i], pH: b.pH[i], mV: b.mV[i] } });
+      const n = b.ids.length;
+      // Readings to insert from the columns (their places in the block) and their hashes; the rest as items.
+      const fresh: number[] = [];
+      const hashes: string[] = [];
+      const replays: Item[] = [];
+      for (let i = 0; i < n; i++) {
+        const t = b.timeS[i];
+        const pH = b.pH[i];
+        const mV = b.mV[i];
+        if (!readingValuesOk(t, pH, mV)) {
+          // Answered as the same change sent on its own would be: the schema words the reason.
+          const change = changeAt(i);
+          const parsed = parsePayload('reading', change.payload);
+          if (!parsed.success) {
+            results[start + i] = result(change, 'rejected', 422, zodReason(parsed.error));
+            continue;
+          }
+          // Taken with a default applied (a value left out, from a caller other than JSON): stored as parsed.
+          b.timeS[i] = parsed.data.timeS;
+          b.pH[i] = parsed.data.pH;
+          b.mV[i] = parsed.data.mV;
+        }
+        const hash = sha256Hex(`reading\n${readingValuesJson(b.runId, b.timeS[i] as number, b.pH[i] as number | null, b.mV[i] as number | null)}`);
+        if (b.seqs[i] <= device.lastSeq) {
+          const change = changeAt(i);
+          replays.push({ change, index: start + i, data: change.payload, hash, replayOnly: true });
+          continue;
+        }
+        fresh.push(i);
+        hashes.push(hash);
+      }
+      if (replays.length) await settleTaken('reading', replays, true);
+      if (!fresh.length) return;
+      const item = (k: number): Item => {
+        const change = changeAt(fresh[k]);
+        return { change, index: start + fresh[k], data: change.payload, hash: hashes[k], replayOnly: false };
+      };
+      // The run is the same for every reading of the block: checked once.
+      const run = runFor(item(0), b.runId);
+      if (!run) {
+        const first = results[start + fresh[0]]!;
+        for (let k = 1; k < fresh.length; k++) results[start + fresh[k]] = { ...first, id: b.ids[fresh[k]], seq: b.seqs[fresh[k]] };
+        return;
+      }
+      const inserted = await repo.insertReadingCells(tx, fresh.length, {
+        id: (k) => b.ids[fresh[k]],
+        run_id: b.runId,
+        lab_id: run.labId,
+        kind: 'reading',
+        time_s: (k) => b.timeS[fresh[k]] as number,
+        ph: (k) => b.pH[fresh[k]] as number | null,
+        mv: (k) => b.mV[fresh[k]] as number | null,
+        replaces_id: null,
+        reason: null,
+        device_recorded_at: (k) => b.recordedAt[fresh[k]],
+        received_at: receivedAt.getTime(),
+        payload_hash: (k) => hashes[k],
+      });
+      logChanged(inserted.maxSeq);
+      const taken: Item[] = [];
+      let took = 0;
+      for (let k = 0; k < fresh.length; k++) {
+        if (!inserted.has(b.ids[fresh[k]])) taken.push(item(k));
+        else if (listAll) results[start + fresh[k]] = { id: b.ids[fresh[k]], seq: b.seqs[fresh[k]], outcome: 'accepted', status: 201 };
+        else {
+          results[start + fresh[k]] = null;
+          took++;
+        }
+      }
+      acceptedUnlisted += took;
+      if (taken.length < fresh.length) {
+        touchedRuns.add(run.id);
+        lastLab = run.labId;
+      }
+      if (taken.length) await settleTaken('reading', taken);
+    }
+
     await rowsStage('checkpoint', (it, d, labId) => ({ ...common(it, labId), runId: d.runId, timeS: d.timeS, buretteMl: d.buretteMl }));
     await rowsStage('run_event', (it, d, labId) => ({ ...common(it, labId), runId: d.runId, kind: d.kind, timeS: d.timeS, detail: d.detail }));
 
@@ -479,14 +572,16 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
     logChanged(await repo.logChanges(tx, log));
     if (clockFlagged) await repo.flagRunClocks(tx, [...touchedRuns], req.deviceId, clockOffsetMs, receivedAt);
     if (maxSeq !== null) await repo.notifyRuns(tx, LIVE_CHANNEL, [...touchedRuns].map((r) => `${r}:${maxSeq}`));
-    const lastSeq = Math.max(device.lastSeq, req.changes[req.changes.length - 1].seq);
+    let lastSeq = device.lastSeq;
+    if (req.changes.length) lastSeq = Math.max(lastSeq, req.changes[req.changes.length - 1].seq);
+    for (const b of req.readings ?? []) lastSeq = Math.max(lastSeq, b.seqs[b.seqs.length - 1]);
     await repo.updateDevice(tx, req.deviceId, caller.userId, {
       lastSeq,
       clockOffsetMs,
       lastSyncAt: receivedAt,
       ...(lastLab ? { labId: lastLab } : {}),
     });
-    const rest = { lastSeq, serverTime: receivedAt.toISOString(), clockOffsetMs, clockFlagged, mailed };
+    const rest = { lastSeq, serverTime: receivedAt.toISOString(), clockOffsetMs, clockFlagged, readingBlocks: true, mailed };
     if (listAll) return { results: results as ChangeResult[], ...rest };
     // A change left unanswered (none should be) is neither listed nor counted: the device then settles nothing.
     return { results: results.filter((r): r is ChangeResult => r !== null), acceptedUnlisted, ...rest };

@@ -1,12 +1,18 @@
 import { describe, expect, it } from 'vitest';
-import { MAX_BATCH, MAX_BATCH_BEFORE, PUSH_BODY_LIMIT_BYTES, PUSH_BYTES_BUDGET, type PushRequest, type PushResponse } from '../../shared/schemas/sync';
+import { MAX_BATCH, MAX_BATCH_BEFORE, PUSH_BODY_LIMIT_BYTES, PUSH_BYTES_BUDGET, requestChanges, type PushRequest, type PushResponse } from '../../shared/schemas/sync';
+import { changesOf } from './changes';
 import { describeSync } from './describe';
-import { READING_BYTES, SyncEngine, TransportError, type SyncTransport } from './engine';
+import { BLOCK_HEAD_BYTES, BLOCK_READING_BYTES, packPush, READING_BYTES, SyncEngine, TransportError, type SyncTransport } from './engine';
 import { MemoryDevice } from './memoryStore';
 
 const LAB = '0190a3b0-0000-7000-8000-000000000001';
 
-/** A server stand-in that accepts everything, except payloads it is told to reject. */
+/**
+ * A server stand-in that accepts everything, except payloads it is told to reject, with the server's rules for
+ * sequence numbers: a known id is "already have it", a new id at or below the device's last accepted number is out of
+ * order. `pushes` holds each push as the server read it (blocks of readings expanded into their changes), `sent` each
+ * request as sent.
+ */
 function fakeServer(
   opts: {
     reject?: (c: PushRequest['changes'][number]) => string | null;
@@ -17,10 +23,15 @@ function fakeServer(
     full?: boolean;
     /** Spoils the answer after it is made (a server bug or a mixed-up reply). */
     spoil?: (res: PushResponse) => PushResponse;
+    /** A server from before reading blocks: drops them unread, refuses a push of no changes (400), never says it takes them. */
+    old?: boolean;
   } = {},
 ) {
   const pushes: PushRequest[] = [];
+  const sent: PushRequest[] = [];
   const counts = { refused: 0 };
+  const stored = new Set<string>();
+  let lastSeq = 0;
   const t: SyncTransport = {
     async push(req) {
       const err = opts.fail?.();
@@ -30,21 +41,32 @@ function fakeServer(
         counts.refused++;
         throw refusal;
       }
-      pushes.push(req);
-      const all = req.changes.map((c) => {
+      sent.push(req);
+      if (opts.old && !req.changes.length) {
+        counts.refused++;
+        throw new TransportError('client', 'changes: Too small: expected array to have >=1 items', 400);
+      }
+      const changes = opts.old ? req.changes : requestChanges(req);
+      pushes.push({ ...req, changes, readings: undefined });
+      const all = changes.map((c) => {
         const why = opts.reject?.(c) ?? null;
-        return why ? { id: c.id, seq: c.seq, outcome: 'rejected' as const, status: 422, reason: why } : { id: c.id, seq: c.seq, outcome: 'accepted' as const, status: 201 };
+        if (why) return { id: c.id, seq: c.seq, outcome: 'rejected' as const, status: 422, reason: why };
+        if (stored.has(c.id)) return { id: c.id, seq: c.seq, outcome: 'duplicate' as const, status: 200 };
+        if (c.seq <= lastSeq) return { id: c.id, seq: c.seq, outcome: 'out_of_order' as const, status: 409, reason: `not after ${lastSeq}` };
+        stored.add(c.id);
+        return { id: c.id, seq: c.seq, outcome: 'accepted' as const, status: 201 };
       });
+      lastSeq = Math.max(lastSeq, ...changes.map((c) => c.seq));
       const compact = !opts.full && req.answer === 'exceptions';
       const results = compact ? all.filter((r) => r.outcome !== 'accepted') : all;
-      const res = { results, ...(compact ? { acceptedUnlisted: all.length - results.length } : {}), lastSeq: req.changes.at(-1)!.seq, serverTime: new Date().toISOString(), clockOffsetMs: 0, clockFlagged: false } satisfies PushResponse;
+      const res = { results, ...(compact ? { acceptedUnlisted: all.length - results.length } : {}), lastSeq, serverTime: new Date().toISOString(), clockOffsetMs: 0, clockFlagged: false, ...(opts.old ? {} : { readingBlocks: true }) } satisfies PushResponse;
       return opts.spoil ? opts.spoil(res) : res;
     },
     async pull(cursor) {
       return { changes: [], cursor, more: false };
     },
   };
-  return { t, pushes, counts };
+  return { t, pushes, sent, counts };
 }
 const noTimers = { setTimer: () => null, clearTimer: () => {} };
 
@@ -65,7 +87,7 @@ describe('sync engine', () => {
     expect(e.status.state).toBe('synced');
   });
 
-  it('keeps each push under the push body limit: long notes go in several pushes, readings as many as fit', async () => {
+  it('keeps each push under the push body limit: long notes go in several pushes, readings as many as fit (one by one, to a server from before blocks)', async () => {
     const dev = new MemoryDevice('u1');
     const run = dev.createRun(LAB);
     // 300 offline edits of 19,000 three-byte characters (~17 MB in all; notes take up to 20,000 characters).
@@ -76,7 +98,7 @@ describe('sync engine', () => {
       dev.editNotes(run.id, notes);
     }
     for (let i = 0; i < MAX_BATCH; i++) dev.addReading(run.id, i, 4);
-    const { t, pushes } = fakeServer();
+    const { t, pushes } = fakeServer({ old: true });
     const e = new SyncEngine(dev, t, noTimers);
     await e.sync();
     const bodies = pushes.map((p) => Buffer.byteLength(JSON.stringify(p)));
@@ -105,17 +127,85 @@ describe('sync engine', () => {
     expect(Buffer.byteLength(JSON.stringify(longest))).toBeLessThanOrEqual(READING_BYTES);
   });
 
+  it("counts a reading in a block at its bound: the longest numbers a reading can carry stay within it", () => {
+    // 17 significant digits and an exponent: the longest a number in these columns is written (22 characters).
+    const long = Number('-1.2345678901234567e-7');
+    expect(String(long)).toHaveLength(22);
+    const longest = (k: number) => ({
+      id: `0190a3b0-0000-7000-8000-${String(k).padStart(12, '0')}`,
+      kind: 'reading' as const,
+      seq: Number.MAX_SAFE_INTEGER - 10 + k,
+      recordedAt: 253402300799999,
+      payload: { runId: LAB, timeS: -long, pH: long, mV: long },
+    });
+    const size = (n: number) => Buffer.byteLength(JSON.stringify(packPush(Array.from({ length: n }, (_, k) => longest(k))).readings));
+    expect(size(1)).toBeLessThanOrEqual(BLOCK_HEAD_BYTES + BLOCK_READING_BYTES);
+    expect(size(2) - size(1)).toBeLessThanOrEqual(BLOCK_READING_BYTES);
+    for (const v of [604799.9999999999, -1999.9999999999998, 5e-324, -Number.MIN_VALUE]) expect(String(v).length).toBeLessThanOrEqual(String(long).length);
+  });
+
+  it('sends new readings in blocks of one run each: the server reads the same changes, from a body under half the size', async () => {
+    const dev = new MemoryDevice('u1');
+    const a = dev.createRun(LAB);
+    const b = dev.createRun(LAB);
+    for (let i = 0; i < 400; i++) {
+      dev.addReading(i % 2 ? a.id : b.id, i, 4 + i / 1000);
+      if (i === 200) dev.editNotes(a.id, 'stirrer slowed; demo');
+    }
+    const blocks = fakeServer();
+    await new SyncEngine(dev, blocks.t, noTimers).sync();
+    expect(dev.outbox.every((o) => o.state === 'acked')).toBe(true);
+
+    // What the server read is every change of the queue, as each would go on its own.
+    const oneByOne = dev.outbox.flatMap((row) => {
+      const m = changesOf(row, dev.deviceId, LAB);
+      return m.kind === 'send' ? m.changes : [];
+    });
+    const read = blocks.pushes.flatMap((p) => p.changes).sort((x, y) => x.seq - y.seq);
+    expect(read).toEqual(oneByOne);
+    expect(read.filter((c) => c.kind === 'reading')).toHaveLength(400);
+
+    // Until the server said it takes blocks, the push with them carries no other change after its first reading: the
+    // notes edit went in the next push, and two runs' readings went in two blocks.
+    const [first, second] = blocks.sent;
+    expect(first.readings!.map((r) => r.runId).sort()).toEqual([a.id, b.id].sort());
+    const firstReading = Math.min(...first.readings!.flatMap((r) => r.seqs));
+    expect(first.changes.every((c) => c.seq < firstReading)).toBe(true);
+    expect(second.changes.map((c) => c.kind)).toContain('run_meta_edit');
+    const bytes = (list: PushRequest[]) => list.reduce((n, p) => n + Buffer.byteLength(JSON.stringify(p)), 0);
+    expect(bytes(blocks.sent)).toBeLessThan(bytes(blocks.pushes) / 2);
+  });
+
+  it('to a server from before blocks, which drops them unread: nothing lost, nothing out of order, then one by one', async () => {
+    const dev = new MemoryDevice('u1');
+    const run = dev.createRun(LAB);
+    for (let i = 0; i < 30; i++) dev.addReading(run.id, i, 4);
+    dev.editNotes(run.id, 'demo notes');
+    for (let i = 30; i < 60; i++) dev.addReading(run.id, i, 4);
+    const { t, pushes, sent } = fakeServer({ old: true });
+    const e = new SyncEngine(dev, t, noTimers);
+    await e.sync();
+    expect(sent[0].readings?.length).toBe(1);
+    expect(sent.slice(1).every((p) => p.readings === undefined)).toBe(true);
+    const readings = pushes.flatMap((p) => p.changes).filter((c) => c.kind === 'reading');
+    expect(new Set(readings.map((c) => c.id)).size).toBe(60);
+    expect(dev.outbox.every((o) => o.state === 'acked')).toBe(true);
+    expect(e.status).toMatchObject({ state: 'synced', rejected: 0 });
+  });
+
   it('a server that takes only MAX_BATCH_BEFORE changes (400 to more) gets the rest in pushes of that size', async () => {
     const dev = new MemoryDevice('u1');
     const run = dev.createRun(LAB);
     for (let i = 0; i < MAX_BATCH_BEFORE + 500; i++) dev.addReading(run.id, i, 4);
     const { t, pushes, counts } = fakeServer({
+      old: true,
       refuse: (req) => (req.changes.length > MAX_BATCH_BEFORE ? new TransportError('client', 'changes: Too big: expected array to have <=2000 items', 400) : null),
     });
     const e = new SyncEngine(dev, t, noTimers);
     await e.sync();
     expect(counts.refused).toBe(1);
-    expect(pushes.map((p) => p.changes.length)).toEqual([MAX_BATCH_BEFORE, 501]);
+    // The first push's readings went in a block, which this server dropped (it took the run alone); then one by one.
+    expect(pushes.map((p) => p.changes.length)).toEqual([1, MAX_BATCH_BEFORE, 501]);
     expect(dev.outbox.every((o) => o.state === 'acked')).toBe(true);
     expect(e.status.state).toBe('synced');
   });
@@ -128,17 +218,17 @@ describe('sync engine', () => {
     dev.editNotes(run.id, 'n'.repeat(30_000));
     for (let i = 300; i < 600; i++) dev.addReading(run.id, i, 4);
     const LIMIT = 20_000;
-    const { t, pushes, counts } = fakeServer({
+    const { t, pushes, sent, counts } = fakeServer({
       refuse: (req) => (Buffer.byteLength(JSON.stringify(req)) > LIMIT ? new TransportError('client', 'HTTP 413', 413) : null),
     });
     const e = new SyncEngine(dev, t, noTimers);
     await e.sync();
     expect(counts.refused).toBeGreaterThan(0);
-    expect(pushes.every((p) => Buffer.byteLength(JSON.stringify(p)) <= LIMIT)).toBe(true);
+    expect(sent.every((p) => Buffer.byteLength(JSON.stringify(p)) <= LIMIT)).toBe(true);
     // Every reading arrived once; the notes edit waits on the device, rejected with the reason.
-    const sent = pushes.flatMap((p) => p.changes).filter((c) => c.kind === 'reading').map((c) => c.id);
-    expect(sent.length).toBe(600);
-    expect(new Set(sent).size).toBe(600);
+    const arrived = pushes.flatMap((p) => p.changes).filter((c) => c.kind === 'reading').map((c) => c.id);
+    expect(arrived.length).toBe(600);
+    expect(new Set(arrived).size).toBe(600);
     const notes = dev.outbox.find((o) => o.entity === 'run' && o.op === 'update')!;
     expect(notes.state).toBe('rejected');
     expect(notes.lastError).toMatch(/Too large for the server/);

@@ -3,7 +3,7 @@
 // event, periodically while anything waits, and again after a failure with exponential backoff.
 // Nothing here deletes local data: a row leaves the queue only as "acked" (the server has it) or "rejected" (the
 // server said it never can take it, with the reason, shown to the user).
-import { MAX_BATCH, MAX_BATCH_BEFORE, PUSH_BYTES_BUDGET, type Change, type ChangeResult, type MetaResolution, type PullResponse, type PulledChange, type PushRequest, type PushResponse } from '../../shared/schemas/sync';
+import { MAX_BATCH, MAX_BATCH_BEFORE, PUSH_BYTES_BUDGET, type Change, type ChangeResult, type MetaResolution, type PullResponse, type PulledChange, type PushRequest, type PushResponse, type ReadingBlock } from '../../shared/schemas/sync';
 import type { OutboxRow } from '../local/types';
 import { changesOf, needsLab, SLOTS, toChanges, type MapContext } from './changes';
 
@@ -107,6 +107,13 @@ export class SyncEngine {
   private maxChanges: number;
   /** UTF-8 bytes of changes per push now: PUSH_BYTES_BUDGET, or less once something on the way refused a body (413). */
   private bytesBudget = PUSH_BYTES_BUDGET;
+  /**
+   * Whether the server takes readings in blocks: unknown until a push's answer says so. A server from before blocks
+   * drops them unread and still takes the push's other changes, moving the device's last sequence number past them;
+   * so until the server has said yes, a push with blocks carries no other change after its first reading (those
+   * readings then stay above that number and go again one by one), and a server that does not say yes gets no more.
+   */
+  private blocks: 'unknown' | 'yes' | 'no' = 'unknown';
   private timer: unknown = null;
   private unOnline: (() => void) | null = null;
   private listeners = new Set<(s: SyncStatus) => void>();
@@ -246,6 +253,10 @@ export class SyncEngine {
       // UTF-8 JSON of the changes so far, kept under the body limit (a row that would pass it waits for the next push).
       let bytes = 0;
       let waitReason: string | null = null;
+      const packing = this.blocks !== 'no';
+      // Runs whose block this push has begun (each block's own keys are counted once).
+      const blockRuns = new Set<string>();
+      let blockStarted = false;
       for (const row of rows) {
         // Only a run's first row waits on the database (its lab); awaiting every row would cost a turn of the
         // event loop per reading.
@@ -259,9 +270,22 @@ export class SyncEngine {
         else {
           // The first row always goes (a row has up to SLOTS changes; a limit below that must not stall the queue).
           if (changes.length && changes.length + m.changes.length > this.maxChanges) break;
-          const rowBytes = m.changes.reduce((n, c) => n + bytesOf(c), 0);
+          const inBlock = packing && m.changes.length === 1 && blockable(m.changes[0]);
+          if (this.blocks === 'unknown' && blockStarted && !inBlock) break;
+          let rowBytes = 0;
+          for (const c of m.changes) {
+            if (!inBlock) rowBytes += bytesOf(c);
+            else {
+              const runId = (c.payload as { runId: string }).runId;
+              rowBytes += BLOCK_READING_BYTES + (blockRuns.has(runId) ? 0 : BLOCK_HEAD_BYTES);
+            }
+          }
           if (changes.length && bytes + rowBytes > this.bytesBudget) break;
           bytes += rowBytes;
+          if (inBlock) {
+            blockRuns.add((m.changes[0].payload as { runId: string }).runId);
+            blockStarted = true;
+          }
           for (const c of m.changes) changes.push(c);
           send.push(row);
         }
@@ -273,9 +297,15 @@ export class SyncEngine {
       }
       // Only the exceptions come back; every other change is counted as accepted (checked against what was sent).
       let res: PushResponse;
+      const req = packing ? packPush(changes) : { changes };
       try {
-        res = await this.transport.push({ deviceId: this.store.deviceId, sentAt: Math.max(0, Math.round(this.o.now())), changes, answer: 'exceptions' });
+        res = await this.transport.push({ deviceId: this.store.deviceId, sentAt: Math.max(0, Math.round(this.o.now())), ...req, answer: 'exceptions' });
       } catch (err) {
+        // A server from before blocks refuses a push of blocks alone (no changes) as a bad request: go again without.
+        if (req.readings && this.blocks === 'unknown' && err instanceof TransportError && err.status === 400) {
+          this.blocks = 'no';
+          continue;
+        }
         // A server from before MAX_BATCH was raised refuses a longer push as a bad request: go again at its size.
         if (err instanceof TransportError && err.status === 400 && changes.length > MAX_BATCH_BEFORE) {
           this.maxChanges = MAX_BATCH_BEFORE;
@@ -296,6 +326,14 @@ export class SyncEngine {
           continue;
         }
         throw err;
+      }
+      if (req.readings) {
+        if (res.readingBlocks !== true) {
+          // Dropped unread by an older server: the rest of the push went in; its readings go again one by one.
+          this.blocks = 'no';
+          continue;
+        }
+        this.blocks = 'yes';
       }
       if (!answerCovers(res, changes)) throw new TransportError('server', "The server's answer does not match the changes sent; they stay queued and go again.");
       this.set({ clockOffsetMs: res.clockOffsetMs, clockFlagged: res.clockFlagged });
@@ -346,8 +384,48 @@ export class SyncEngine {
  * 300 bytes), so it is not written out to be counted; anything else may carry long text (notes, reasons).
  */
 export const READING_BYTES = 320;
-/** Readings one push can carry: the body budget at each reading's bound, or MAX_BATCH. */
-const READINGS_PER_PUSH = Math.min(MAX_BATCH, Math.floor(PUSH_BYTES_BUDGET / READING_BYTES));
+/**
+ * A reading's size in a block (bytes): a uuid, a sequence number, a time and three payload values, each in its
+ * column's array (the longest numbers: a 16-digit sequence number, 15-digit epoch ms, and the rest written in at most
+ * 22 characters, as in -1.2345678901234567e-7).
+ */
+export const BLOCK_READING_BYTES = 150;
+/** A block's own keys and run id. */
+export const BLOCK_HEAD_BYTES = 128;
+/** Readings one push can carry: the body budget at each reading's bound in a block, or MAX_BATCH. */
+const READINGS_PER_PUSH = Math.min(MAX_BATCH, Math.floor(PUSH_BYTES_BUDGET / BLOCK_READING_BYTES));
+
+/** A new reading whose payload a block carries exactly: these four values, numbers or null, and nothing else. */
+function blockable(c: Change): boolean {
+  if (c.kind !== 'reading') return false;
+  const p = c.payload as Record<string, unknown>;
+  let keys = 0;
+  for (const k in p) if (Object.hasOwn(p, k)) keys++;
+  return keys === 4 && typeof p.runId === 'string' && typeof p.timeS === 'number' && numberOrNull(p.pH) && numberOrNull(p.mV);
+}
+const numberOrNull = (v: unknown) => typeof v === 'number' || v === null;
+
+/** The push of these changes: each run's new readings in a block (shared/schemas/sync.ts), the rest as they are. */
+export function packPush(changes: readonly Change[]): { changes: Change[]; readings?: ReadingBlock[] } {
+  const rest: Change[] = [];
+  const blocks = new Map<string, ReadingBlock>();
+  for (const c of changes) {
+    if (!blockable(c)) {
+      rest.push(c);
+      continue;
+    }
+    const p = c.payload as { runId: string; timeS: number; pH: number | null; mV: number | null };
+    let b = blocks.get(p.runId);
+    if (!b) blocks.set(p.runId, (b = { runId: p.runId, ids: [], seqs: [], recordedAt: [], timeS: [], pH: [], mV: [] }));
+    b.ids.push(c.id);
+    b.seqs.push(c.seq);
+    b.recordedAt.push(c.recordedAt);
+    b.timeS.push(p.timeS);
+    b.pH.push(p.pH);
+    b.mV.push(p.mV);
+  }
+  return blocks.size ? { changes: rest, readings: [...blocks.values()] } : { changes: rest };
+}
 function bytesOf(c: Change): number {
   return c.kind === 'reading' ? READING_BYTES : utf8Length(JSON.stringify(c));
 }

@@ -144,6 +144,15 @@ const pushChanges = (c: Ctx) => {
   return { deviceId: v7(), sentAt: at, changes: changes.map((ch, i) => ({ ...ch, seq: i + 1, recordedAt: at })) };
 };
 
+// The same with readings in a block (a device's usual push): the fuzz then mutates the block's columns too.
+const pushBlock = (c: Ctx) => {
+  const runId = v7();
+  const at = c.fx.now().getTime();
+  const run = { kind: 'run', id: runId, seq: 1, recordedAt: at, payload: { labId: c.a.labId, sampleName: 'fuzz block push', setup: {}, status: 'recording' } };
+  const readings = [{ runId, ids: [v7(), v7(), v7()], seqs: [5, 9, 13], recordedAt: [at, at + 1, at + 2], timeS: [0, 1.5, 3], pH: [3.1, null, 3.3], mV: [null, 215, null] }];
+  return { deviceId: v7(), sentAt: at, changes: [run], readings, answer: 'exceptions' };
+};
+
 const csv = (rows: number) => ['time_s,pH,note', ...Array.from({ length: rows }, (_v, i) => `${i * 10},${(3 + i * 0.25).toFixed(2)},ok`)].join('\n');
 
 export const specs: Record<string, RouteSpec> = {
@@ -274,7 +283,7 @@ export const specs: Record<string, RouteSpec> = {
   'POST /labs/:labId/calibrations/:calibrationId/attachments': { valid: [() => ({})], upload: true },
   'GET /labs/:labId/calibrations/:calibrationId/attachments': { valid: [() => ({})] },
   'GET /attachments/:attachmentId': { valid: [() => ({})] },
-  'POST /sync/push': { valid: [(c) => ({ body: pushChanges(c) })] },
+  'POST /sync/push': { valid: [(c) => ({ body: pushChanges(c) }), (c) => ({ body: pushBlock(c) })] },
   'GET /sync/pull': { valid: [() => ({ query: { cursor: '0', limit: '50' } }), () => ({ query: { cursor: '100', limit: '200' } })] },
   'GET /runs/:runId/live': { valid: [() => ({ query: { after: '0' } }), () => ({})] },
   'GET /dev/mailbox': { valid: [() => ({})] },
