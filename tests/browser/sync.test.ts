@@ -61,8 +61,10 @@ describe('sync in the browser', () => {
       let held = false;
       const pushed = new Promise<void>((r) => (committed = r));
       await context.route('**/api/sync/push', async (route: Route) => {
-        const changes = (JSON.parse(route.request().postData() ?? '{}').changes ?? []) as { kind: string }[];
-        if (held || !changes.some((c) => c.kind === 'reading')) return route.continue();
+        // Readings go one by one in `changes` or, as the app sends new ones, in blocks (`readings`).
+        const body = JSON.parse(route.request().postData() ?? '{}') as { changes?: { kind: string }[]; readings?: unknown[] };
+        const carriesReadings = (body.changes ?? []).some((c) => c.kind === 'reading') || (body.readings ?? []).length > 0;
+        if (held || !carriesReadings) return route.continue();
         held = true;
         await route.fetch();
         committed!();
