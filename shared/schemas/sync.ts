@@ -209,14 +209,14 @@ export function quickChange(v: unknown): Change | undefined {
 }
 
 /**
- * Changes in one push at most. The push's body budget (PUSH_BYTES_BUDGET) ends a push of readings first: the device
- * counts each reading at its bound (READING_BYTES, src/sync/engine.ts), ~12,900 a push; at about 200 bytes each that
- * is a body of ~2.6 MB and one transaction of about half a second on PGlite. Fewer, larger pushes spare each push's
- * fixed work (lock, run lookup, device row, commit; HTTP, the session check, the request and its answer): 2,000 →
- * 5,000 took the sync bench's median 1.00 → 0.78 s (6 alternating runs each, loaded machine, 2026-12-02); a 4 MB push
- * body instead of 2 MB sends a run and 10,000 readings in one push instead of two, 476 → 434 ms (one bench run each,
- * idle machine, 2026-12-02). A cached client sending fewer is still taken; a device facing an older server that
- * refuses more falls back to MAX_BATCH_BEFORE, or halves its pushes on a 413 (src/sync/engine.ts).
+ * Changes in one push at most. For new readings in blocks (about 80 bytes each) it ends a push: 16,000 are ~1.3 MB
+ * (10,000 took ~0.4 s on PGlite in the sync bench, as one transaction). Sent one by one (to a server from before
+ * blocks), readings are ~200 bytes and the push's body budget (PUSH_BYTES_BUDGET, each counted at its bound
+ * READING_BYTES, src/sync/engine.ts) ends a push at ~12,900. Fewer, larger pushes spare each push's fixed work (lock, run lookup, device row, commit;
+ * HTTP, the session check, the request and its answer): 2,000 → 5,000 took the sync bench's median 1.00 → 0.78 s (6
+ * alternating runs each, loaded machine, 2026-12-02); a run and 10,000 readings in one push instead of two, 476 →
+ * 434 ms (one bench run each, idle machine, 2026-12-02). A cached client sending fewer is still taken; a device
+ * facing an older server that refuses more falls back to MAX_BATCH_BEFORE, or halves its pushes on a 413.
  */
 export const MAX_BATCH = 16_000;
 /** What servers took before MAX_BATCH was raised: a device refused a longer push (400) goes again with this many. */
@@ -225,8 +225,8 @@ export const MAX_BATCH_BEFORE = 2000;
 /** The largest JSON body the API takes (bytes; server/app.ts), except a push's and an import's. */
 export const API_BODY_LIMIT_BYTES = 2 * 1024 * 1024;
 /**
- * The largest body of a push (bytes; server/app.ts). A long offline run goes in few pushes; the one transaction of
- * the largest takes about half a second on PGlite, where other requests wait for it.
+ * The largest body of a push (bytes; server/app.ts). A long offline run goes in few pushes; each is one transaction,
+ * which other requests wait for on PGlite (10,000 readings: ~0.4 s).
  */
 export const PUSH_BODY_LIMIT_BYTES = 4 * 1024 * 1024;
 /**
