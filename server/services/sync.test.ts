@@ -4,7 +4,7 @@ import { v7 } from 'uuid';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Database } from '../../db/client';
 import { checkpoints, devices, readings, runClockFlags, runMetaHistory, runs } from '../../db/schema';
-import { CLOCK_FLAG_MS, payloadSchemas, pushRequestSchema } from '../../shared/schemas/sync';
+import { CLOCK_FLAG_MS, parsePushRequest, payloadSchemas, pushRequestSchema } from '../../shared/schemas/sync';
 import { closeTemplate, testDatabase } from '../testing/db';
 import fc from 'fast-check';
 import { canonicalJson, payloadHash, pull, push, readingCanonicalJson } from './sync';
@@ -338,10 +338,17 @@ describe('readings in blocks', () => {
     expect((await database.db.select({ n: count() }).from(readings).where(inArray(readings.id, rs.map((r) => r.id))))[0].n).toBe(50);
   });
 
-  it('the envelope: a sequence number used twice in a push, or columns of unequal length, refuse the whole request', async () => {
+  it('the envelope: a sequence number or an id used twice in a push, or columns of unequal length, refuse the whole request', async () => {
     const { run, rs, req } = await blockBatch(3);
     expect(pushRequestSchema.safeParse(req).success).toBe(true);
     expect(pushRequestSchema.safeParse({ ...req, changes: [{ ...run, seq: rs[1].seq }] }).success).toBe(false);
+    // One id twice: in a block and in the changes, or twice in the changes (one of the two would go unstored).
+    const sameId = pushRequestSchema.safeParse({ ...req, changes: [{ ...run, id: rs[2].id }] });
+    expect(sameId.success).toBe(false);
+    expect(sameId.error?.issues[0].message).toMatch(/used twice/);
+    const twice = { ...rs[0], seq: rs[2].seq + 1, payload: { ...(rs[0].payload as object), pH: 5.5 } };
+    expect(pushRequestSchema.safeParse({ deviceId: req.deviceId, sentAt: 1, changes: [rs[0], twice] }).success).toBe(false);
+    expect(() => parsePushRequest({ deviceId: req.deviceId, sentAt: 1, changes: [rs[0], twice] })).toThrow(/used twice/);
     const b = req.readings![0];
     expect(pushRequestSchema.safeParse({ ...req, readings: [{ ...b, pH: b.pH.slice(1) }] }).success).toBe(false);
     expect(pushRequestSchema.safeParse({ ...req, readings: [{ ...b, seqs: [...b.seqs].reverse() }] }).success).toBe(false);

@@ -273,8 +273,11 @@ export function requestChanges(req: Pick<PushRequest, 'changes' | 'readings'>): 
 /** Changes in a push, its own and its blocks' readings. */
 export const changeCount = (req: Pick<PushRequest, 'changes' | 'readings'>): number => req.changes.length + (req.readings?.reduce((n, b) => n + b.ids.length, 0) ?? 0);
 
-/** Null when the sequence numbers of a push are valid: increasing within `changes` and within each block, none twice. */
-function seqProblem(changes: readonly { seq: number }[], blocks: readonly { seqs: readonly number[] }[]): { path: (string | number)[]; message: string } | null {
+/**
+ * Null when the numbering of a push is valid: sequence numbers increasing within `changes` and within each block, none
+ * used twice, and no record id used twice (two changes under one id in one push would leave one of them unstored).
+ */
+function batchProblem(changes: readonly { id: string; seq: number }[], blocks: readonly { ids: readonly string[]; seqs: readonly number[] }[]): { path: (string | number)[]; message: string } | null {
   for (let i = 1; i < changes.length; i++) {
     if (changes[i].seq <= changes[i - 1].seq) return { path: ['changes', i, 'seq'], message: 'Sequence numbers must increase within a batch.' };
   }
@@ -282,8 +285,19 @@ function seqProblem(changes: readonly { seq: number }[], blocks: readonly { seqs
     const s = blocks[b].seqs;
     for (let i = 1; i < s.length; i++) if (s[i] <= s[i - 1]) return { path: ['readings', b, 'seqs', i], message: 'Sequence numbers must increase within a batch.' };
   }
-  if (!blocks.length || (blocks.length === 1 && !changes.length)) return null;
-  // Across lists: each number once (a Set only when there is more than one list).
+  const ids = new Set<string>();
+  for (let i = 0; i < changes.length; i++) {
+    if (ids.has(changes[i].id)) return { path: ['changes', i, 'id'], message: `The id ${changes[i].id} is used twice in the batch.` };
+    ids.add(changes[i].id);
+  }
+  for (let b = 0; b < blocks.length; b++) {
+    for (const id of blocks[b].ids) {
+      if (ids.has(id)) return { path: ['readings', b, 'ids'], message: `The id ${id} is used twice in the batch.` };
+      ids.add(id);
+    }
+  }
+  if (!blocks.length) return null;
+  // Sequence numbers across lists: each once.
   const seen = new Set<number>();
   for (const c of changes) seen.add(c.seq);
   for (let b = 0; b < blocks.length; b++) {
@@ -314,7 +328,7 @@ export const pushRequestSchema = z
     const n = changeCount(b);
     if (n < 1) ctx.addIssue({ code: 'custom', path: ['changes'], message: 'A push carries at least one change.' });
     if (n > MAX_BATCH) ctx.addIssue({ code: 'custom', path: ['changes'], message: `A push carries at most ${MAX_BATCH} changes.` });
-    const p = seqProblem(b.changes, b.readings ?? []);
+    const p = batchProblem(b.changes, b.readings ?? []);
     if (p) ctx.addIssue({ code: 'custom', ...p });
   });
 export type PushRequest = z.infer<typeof pushRequestSchema>;
@@ -362,7 +376,7 @@ export function parsePushRequest(v: unknown): PushRequest {
     if ('readings' in v) req.readings = blocks;
     if ('answer' in v) req.answer = answer;
     const n = changeCount(req);
-    if (n < 1 || n > MAX_BATCH || seqProblem(out, blocks ?? [])) break quick;
+    if (n < 1 || n > MAX_BATCH || batchProblem(out, blocks ?? [])) break quick;
     return req;
   }
   return pushRequestSchema.parse(v);
