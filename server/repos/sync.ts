@@ -182,16 +182,14 @@ export async function insertReadingCells(tx: Executor, n: number, cells: Reading
   let ids = '';
   for (const [name, type, into] of READING_COLUMNS) {
     const cell = cells[name];
-    let one = typeof cell !== 'function';
     const get = typeof cell === 'function' ? cell : () => cell;
     const head = get(0);
-    // Most columns of a push are the same on every row (run, lab, kind, receipt time…): found so first, before any
-    // array literal is written, they cost one comparison per row and no text.
-    if (!one && name !== 'id') {
-      one = true;
-      for (let i = 1; one && i < n; i++) one = get(i) === head;
-    }
-    if (one && name !== 'id') {
+    // Most columns of a push are the same on every row (run, lab, kind, receipt time…): given as one value, or found
+    // so first, before any array literal is written, at one comparison per row and no text. The ids always go as an
+    // array (its literal finds the new rows when some were taken).
+    let one = name !== 'id';
+    if (one && typeof cell === 'function') for (let i = 1; one && i < n; i++) one = get(i) === head;
+    if (one) {
       const value = sql`${head}::${sql.raw(type)}`;
       selected.push(into ? into(value) : value);
     } else {

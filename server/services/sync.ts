@@ -2,6 +2,7 @@ import crypto from 'node:crypto';
 import type { z } from 'zod';
 import {
   CLOCK_FLAG_MS,
+  blockReading,
   changeCount,
   parsePayload,
   readingValuesOk,
@@ -352,7 +353,7 @@ export async function push(deps: SyncDeps, caller: SyncCaller, req: PushRequest)
       blockStart += b.ids.length;
     }
     async function blockStage(b: ReadingBlock, start: number) {
-      const changeAt = (i: number): Change => ({ id: b.ids[i], kind: 'reading', seq: b.seqs[i], recordedAt: b.recordedAt[i], payload: { runId: b.runId, timeS: b.timeS[i], pH: b.pH[i], mV: b.mV[i] } });
+      const changeAt = (i: number) => blockReading(b, i);
       const n = b.ids.length;
       // Readings to insert from the columns (their places in the block) and their hashes; the rest as items.
       const fresh: number[] = [];

@@ -240,8 +240,8 @@ export const PUSH_BYTES_BUDGET = PUSH_BODY_LIMIT_BYTES - 64 * 1024;
  * device time and payload values). A long offline run is almost all new readings, and in this form each costs about
  * 80 bytes of JSON instead of 200, with no object per reading to write or read on either side. Each reading is still a
  * change of its own: the same envelope rules (a bad id, sequence number or time refuses the request), its payload
- * judged alone (one bad value is rejected, the rest go in), and an answer of its own. `expandReadingBlocks` gives the
- * changes a block stands for.
+ * judged alone (one bad value is rejected, the rest go in), and an answer of its own. `blockReading` gives the change
+ * a reading of a block stands for.
  */
 export const readingBlockSchema = z
   .object({
@@ -257,17 +257,15 @@ export const readingBlockSchema = z
   .refine((b) => [b.seqs, b.recordedAt, b.timeS, b.pH, b.mV].every((a) => a.length === b.ids.length), { message: 'Every column of a reading block has one value per reading.' });
 export type ReadingBlock = z.infer<typeof readingBlockSchema>;
 
-/** The changes a block of readings stands for, in its order. */
-export function expandReadingBlock(b: ReadingBlock): Change[] {
-  const out = new Array<Change>(b.ids.length);
-  for (let i = 0; i < b.ids.length; i++) out[i] = { id: b.ids[i], kind: 'reading', seq: b.seqs[i], recordedAt: b.recordedAt[i], payload: { runId: b.runId, timeS: b.timeS[i], pH: b.pH[i], mV: b.mV[i] } };
-  return out;
+/** The change reading i of a block stands for (the same as sent on its own). */
+export function blockReading(b: ReadingBlock, i: number): Change {
+  return { id: b.ids[i], kind: 'reading', seq: b.seqs[i], recordedAt: b.recordedAt[i], payload: { runId: b.runId, timeS: b.timeS[i], pH: b.pH[i], mV: b.mV[i] } };
 }
 
 /** Every change of a push: its `changes`, then the readings of its blocks in order (the order answers are listed in). */
 export function requestChanges(req: Pick<PushRequest, 'changes' | 'readings'>): Change[] {
   if (!req.readings?.length) return req.changes;
-  return [...req.changes, ...req.readings.flatMap(expandReadingBlock)];
+  return [...req.changes, ...req.readings.flatMap((b) => b.ids.map((_, i) => blockReading(b, i)))];
 }
 
 /** Changes in a push, its own and its blocks' readings. */

@@ -256,7 +256,6 @@ export class SyncEngine {
       const packing = this.blocks !== 'no';
       // Runs whose block this push has begun (each block's own keys are counted once).
       const blockRuns = new Set<string>();
-      let blockStarted = false;
       for (const row of rows) {
         // Only a run's first row waits on the database (its lab); awaiting every row would cost a turn of the
         // event loop per reading.
@@ -270,22 +269,13 @@ export class SyncEngine {
         else {
           // The first row always goes (a row has up to SLOTS changes; a limit below that must not stall the queue).
           if (changes.length && changes.length + m.changes.length > this.maxChanges) break;
-          const inBlock = packing && m.changes.length === 1 && blockable(m.changes[0]);
-          if (this.blocks === 'unknown' && blockStarted && !inBlock) break;
-          let rowBytes = 0;
-          for (const c of m.changes) {
-            if (!inBlock) rowBytes += bytesOf(c);
-            else {
-              const runId = (c.payload as { runId: string }).runId;
-              rowBytes += BLOCK_READING_BYTES + (blockRuns.has(runId) ? 0 : BLOCK_HEAD_BYTES);
-            }
-          }
+          // A new reading goes in its run's block (a row of one change), counted at its bound there.
+          const blockRun = packing && m.changes.length === 1 && blockable(m.changes[0]) ? (m.changes[0].payload as { runId: string }).runId : null;
+          if (this.blocks === 'unknown' && blockRuns.size && blockRun === null) break;
+          const rowBytes = blockRun === null ? m.changes.reduce((n, c) => n + bytesOf(c), 0) : BLOCK_READING_BYTES + (blockRuns.has(blockRun) ? 0 : BLOCK_HEAD_BYTES);
           if (changes.length && bytes + rowBytes > this.bytesBudget) break;
           bytes += rowBytes;
-          if (inBlock) {
-            blockRuns.add((m.changes[0].payload as { runId: string }).runId);
-            blockStarted = true;
-          }
+          if (blockRun !== null) blockRuns.add(blockRun);
           for (const c of m.changes) changes.push(c);
           send.push(row);
         }
