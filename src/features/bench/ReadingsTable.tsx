@@ -1,33 +1,33 @@
 // Readings as a table (time, volume, pH), newest first. Only the newest rows are drawn while recording, so a run
 // of thousands of readings stays quick; the review can show them all. Values whose write is still in flight are
-// listed on top as "saving…"; the stored rows below do not re-render when that list changes.
+// listed on top as "saving…"; they are read from the live run's store by the rows that show them, so a value typed
+// re-renders those rows alone (not the table, nor the stored rows below).
 import { memo, useCallback, useState } from 'react';
+import { useStore } from 'zustand';
 import { Pressable, StyleSheet, View } from 'react-native';
 import type { CheckpointRow, ReadingRow } from '../../local/types';
 import { colors, radius, space, touch } from '../../theme/tokens';
 import { Button, Field, Text } from '../../ui';
 import { formatClock } from './clock';
-import { CONTAINED, ISLAND_PARENT } from './contained';
+import { CONTAINED, ISLAND_PARENT, OWN_LAYER } from './contained';
 import type { Effective } from './effective';
 import { numberOrUndefined } from './setup';
-import type { UnsavedValue } from './useBenchRun';
+import { useUnsaved, type RunStore } from './useBenchRun';
 
 export interface ReadingsTableProps {
   readings: readonly Effective<ReadingRow>[];
   checkpoints: readonly Effective<CheckpointRow>[];
   volumeAt(timeS: number): number | null;
   limit?: number;
-  /** Values on their way to the local database (shown as saving, not yet counted). */
-  unsaved?: readonly UnsavedValue[];
+  /** The live run whose values on their way to the local database are shown on top (as saving, not yet counted). */
+  savingFrom?: RunStore;
   onCorrectReading?(eff: Effective<ReadingRow>, pH: number | null, reason: string): Promise<unknown>;
   onCorrectCheckpoint?(eff: Effective<CheckpointRow>, ml: number | null, reason: string): Promise<unknown>;
 }
 
 type Row = { kind: 'reading'; eff: Effective<ReadingRow>; n: number } | { kind: 'checkpoint'; eff: Effective<CheckpointRow>; n: number };
 
-const NO_UNSAVED: readonly UnsavedValue[] = [];
-
-export const ReadingsTable = memo(function ReadingsTable({ readings, checkpoints, volumeAt, limit = 25, unsaved = NO_UNSAVED, onCorrectReading, onCorrectCheckpoint }: ReadingsTableProps) {
+export const ReadingsTable = memo(function ReadingsTable({ readings, checkpoints, volumeAt, limit = 25, savingFrom, onCorrectReading, onCorrectCheckpoint }: ReadingsTableProps) {
   const total = readings.length + checkpoints.length;
   const [showAll, setShowAll] = useState(false);
   const [editing, setEditing] = useState<string | null>(null);
@@ -44,16 +44,16 @@ export const ReadingsTable = memo(function ReadingsTable({ readings, checkpoints
       <TableHead />
       <View style={ISLAND_PARENT}>
         <View style={pinned ? [styles.pinned, { height: limit * ROW_HEIGHT }] : null} testID={pinned ? 'rows-pinned' : undefined}>
-          {unsaved.length ? <UnsavedRows unsaved={unsaved} readingsBefore={readings.length} checkpointsBefore={checkpoints.length} volumeAt={volumeAt} /> : null}
-          <StoredRows readings={readings} checkpoints={checkpoints} volumeAt={volumeAt} take={showAll ? total : limit} editing={editing} onToggle={toggle} onClose={close} onCorrectReading={onCorrectReading} onCorrectCheckpoint={onCorrectCheckpoint} />
+          {savingFrom ? <SavingRows rs={savingFrom} readingsBefore={readings.length} checkpointsBefore={checkpoints.length} volumeAt={volumeAt} /> : null}
+          {/* On a layer of its own while the newest rows are shown (contained.ts); not under "show all", where it
+              would hold every row of a long run. */}
+          <View style={showAll ? null : OWN_LAYER}>
+            <StoredRows readings={readings} checkpoints={checkpoints} volumeAt={volumeAt} take={showAll ? total : limit} editing={editing} onToggle={toggle} onClose={close} onCorrectReading={onCorrectReading} onCorrectCheckpoint={onCorrectCheckpoint} />
+          </View>
         </View>
       </View>
       {total > limit && !showAll ? <ShowAll total={total} onPress={onShowAll} /> : null}
-      {total === 0 && !unsaved.length ? (
-        <Text tone="muted" style={styles.emptyText}>
-          No readings yet.
-        </Text>
-      ) : null}
+      {total === 0 ? <NoRows savingFrom={savingFrom} /> : null}
       <TableNote />
     </View>
   );
@@ -85,8 +85,27 @@ const TableNote = memo(function TableNote() {
   );
 });
 
+// "No readings yet", gone as soon as a first value is being saved.
+const NoRows = memo(function NoRows({ savingFrom }: { savingFrom?: RunStore }) {
+  return savingFrom ? <NoRowsLive rs={savingFrom} /> : <NoRowsNote />;
+});
+
+function NoRowsLive({ rs }: { rs: RunStore }) {
+  return useStore(rs, (s) => s.unsaved.length > 0) ? null : <NoRowsNote />;
+}
+
+function NoRowsNote() {
+  return (
+    <Text tone="muted" style={styles.emptyText}>
+      No readings yet.
+    </Text>
+  );
+}
+
 /** Values typed but not yet committed, newest first, numbered as they will be once stored. */
-function UnsavedRows({ unsaved, readingsBefore, checkpointsBefore, volumeAt }: { unsaved: readonly UnsavedValue[]; readingsBefore: number; checkpointsBefore: number; volumeAt(timeS: number): number | null }) {
+const SavingRows = memo(function SavingRows({ rs, readingsBefore, checkpointsBefore, volumeAt }: { rs: RunStore; readingsBefore: number; checkpointsBefore: number; volumeAt(timeS: number): number | null }) {
+  const unsaved = useUnsaved(rs);
+  if (!unsaved.length) return null;
   let nR = readingsBefore;
   let nC = checkpointsBefore;
   const rows = unsaved.map((u) => ({ u, n: u.kind === 'reading' ? ++nR : ++nC })).reverse();
@@ -123,7 +142,7 @@ function UnsavedRows({ unsaved, readingsBefore, checkpointsBefore, volumeAt }: {
       })}
     </>
   );
-}
+});
 
 type StoredRowsProps = Pick<ReadingsTableProps, 'readings' | 'checkpoints' | 'volumeAt' | 'onCorrectReading' | 'onCorrectCheckpoint'> & {
   take: number;

@@ -40,7 +40,6 @@ import {
   useRunLabel,
   useRunPresence,
   useRunSetup,
-  useUnsaved,
   useWriteError,
   type BenchRun,
   type RunActions,
@@ -217,8 +216,7 @@ const LiveEntry = memo(function LiveEntry({ rs, ...props }: { rs: RunStore } & O
 const LiveTable = memo(function LiveTable({ rs, ...props }: { rs: RunStore } & Pick<ReadingsTableProps, 'volumeAt' | 'onCorrectReading' | 'onCorrectCheckpoint'>) {
   const readings = useReadings(rs);
   const checkpoints = useCheckpoints(rs);
-  const unsaved = useUnsaved(rs);
-  return <ReadingsTable readings={readings} checkpoints={checkpoints} unsaved={unsaved} {...props} />;
+  return <ReadingsTable readings={readings} checkpoints={checkpoints} savingFrom={rs} {...props} />;
 });
 
 const RunBadges = memo(function RunBadges({ status, localState, sleepWarning }: { status: ClockStatus; localState: Extract<BenchRun['local'], { status: 'ready' }> | null; sleepWarning: boolean }) {

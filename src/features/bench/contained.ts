@@ -14,3 +14,11 @@ export const CONTAINED = (Platform.OS === 'web' ? { contain: 'strict' } : {}) as
  * a block, on a page of 1,500 flex rows (unthrottled). Use it for boxes a tap or the clock changes.
  */
 export const ISLAND_PARENT = StyleSheet.create({ parent: (Platform.OS === 'web' ? { display: 'block' } : {}) as ViewStyle }).parent;
+
+/**
+ * A box painted on a layer of its own (web: `will-change: transform`). The readings table's stored rows sit on one:
+ * a value being saved goes in above them and pushes them down a row, which then moves the layer instead of
+ * repainting every row. Measured with the tap benchmark (4× throttle, eight alternating runs each): tap Save →
+ * shown, median of the runs' medians 30 → 27.5 ms, p95 ≤ 50 ms in 7 of 8 runs instead of 5 of 8.
+ */
+export const OWN_LAYER = StyleSheet.create({ layer: (Platform.OS === 'web' ? { willChange: 'transform' } : {}) as ViewStyle }).layer;
