@@ -3,7 +3,7 @@
 // The typed text stays until it has been saved, so a failed write loses nothing.
 // The panel and its keypad stay mounted while the clock runs (idle: nothing to type for), and the chips and keys
 // are memoised on stable callbacks, so a tap or a keystroke re-renders the few elements it changes.
-import { memo, useCallback, useDeferredValue, useMemo, useRef, useState } from 'react';
+import { createContext, memo, useCallback, useContext, useDeferredValue, useMemo, useRef, useState } from 'react';
 import { ScrollView, StyleSheet, View } from 'react-native';
 import type { MarkRow } from '../../local/types';
 import { colors, fonts, radius, space, touch } from '../../theme/tokens';
@@ -116,19 +116,66 @@ export const EntryPanel = memo(function EntryPanel({ pending, hasElectrode, onRe
   // open is ignored (the oldest open mark stays active).
   const chips = useDeferredValue(open);
   const chipOn = useDeferredValue(active?.id ?? null);
+
+  const kind = active?.kind ?? null;
+  const timeS = active?.timeS ?? null;
+  const head = useMemo(() => ({ kind, timeS, readingMode }), [kind, timeS, readingMode]);
+  const mvWithoutCalibration = mode === 'mV' && !hasElectrode;
+  const display = useMemo(() => ({ text, unit: rule.unit, error, mvWithoutCalibration }), [text, rule.unit, error, mvWithoutCalibration]);
+  const pad = useMemo(() => ({ confirmLabel: `Save ${rule.unit}`, idle, allowSign: rule.negative }), [rule.unit, idle, rule.negative]);
+  const strip = useMemo(() => ({ open: chips, activeId: chipOn }), [chips, chipOn]);
+  // What changes goes down through contexts to the few elements that show it; the panel's boxes (PanelBody, with
+  // callbacks that never change) are not rendered again by a tap, a keystroke or a save.
+  return (
+    <StripContext.Provider value={strip}>
+      <HeadContext.Provider value={head}>
+        <DisplayContext.Provider value={display}>
+          <PadContext.Provider value={pad}>
+            <PanelBody onChoose={choose} onMode={onMode} onKey={onKey} onConfirm={confirm} onDiscard={onDiscardActive} />
+          </PadContext.Provider>
+        </DisplayContext.Provider>
+      </HeadContext.Provider>
+    </StripContext.Provider>
+  );
+});
+
+type HeadState = { kind: MarkRow['kind'] | null; timeS: number | null; readingMode: 'pH' | 'mV' };
+type DisplayState = { text: string; unit: string; error: string | null; mvWithoutCalibration: boolean };
+type PadState = { confirmLabel: string; idle: boolean; allowSign: boolean };
+type StripState = { open: readonly OpenMark[]; activeId: string | null };
+const HeadContext = createContext<HeadState>({ kind: null, timeS: null, readingMode: 'pH' });
+const DisplayContext = createContext<DisplayState>({ text: '', unit: 'pH', error: null, mvWithoutCalibration: false });
+const PadContext = createContext<PadState>({ confirmLabel: 'Save', idle: true, allowSign: false });
+const StripContext = createContext<StripState>({ open: [], activeId: null });
+
+type PanelActions = { onChoose(id: string): void; onMode(k: 'pH' | 'mV'): void; onKey(k: Key): void; onConfirm(): void; onDiscard(): void };
+
+// The panel's boxes, rendered once; each part below reads the context it shows.
+const PanelBody = memo(function PanelBody({ onChoose, onMode, onKey, onConfirm, onDiscard }: PanelActions) {
   return (
     <View style={styles.wrap} testID="entry-panel">
-      <ChipRow open={chips} activeId={chipOn} onChoose={choose} />
-      <EntryHead kind={active?.kind ?? null} timeS={active?.timeS ?? null} readingMode={readingMode} onMode={onMode} />
-      <EntryDisplay text={text} unit={rule.unit} error={error} mvWithoutCalibration={mode === 'mV' && !hasElectrode} />
-      <Keypad onKey={onKey} onConfirm={confirm} confirmLabel={`Save ${rule.unit}`} confirmDisabled={idle} allowSign={rule.negative} />
-      <DiscardButton disabled={idle} onPress={onDiscardActive} />
+      <LiveChipRow onChoose={onChoose} />
+      <EntryHead onMode={onMode} />
+      <EntryDisplay />
+      <LivePad onKey={onKey} onConfirm={onConfirm} onDiscard={onDiscard} />
     </View>
   );
 });
 
-// The parts of the panel, each memoised on what it shows, so a keystroke re-renders the display alone and a tap
-// the chips and the heading.
+function LiveChipRow({ onChoose }: { onChoose(id: string): void }) {
+  const { open, activeId } = useContext(StripContext);
+  return <ChipRow open={open} activeId={activeId} onChoose={onChoose} />;
+}
+
+function LivePad({ onKey, onConfirm, onDiscard }: Pick<PanelActions, 'onKey' | 'onConfirm' | 'onDiscard'>) {
+  const { confirmLabel, idle, allowSign } = useContext(PadContext);
+  return (
+    <>
+      <Keypad onKey={onKey} onConfirm={onConfirm} confirmLabel={confirmLabel} confirmDisabled={idle} allowSign={allowSign} />
+      <DiscardButton disabled={idle} onPress={onDiscard} />
+    </>
+  );
+}
 
 const ChipRow = memo(function ChipRow({ open, activeId, onChoose }: { open: readonly OpenMark[]; activeId: string | null; onChoose(id: string): void }) {
   return (
@@ -159,24 +206,47 @@ const IdleNote = memo(function IdleNote({ hidden }: { hidden: boolean }) {
   );
 });
 
-const EntryHead = memo(function EntryHead({ kind, timeS, readingMode, onMode }: { kind: MarkRow['kind'] | null; timeS: number | null; readingMode: 'pH' | 'mV'; onMode(k: 'pH' | 'mV'): void }) {
+const EntryHead = memo(function EntryHead({ onMode }: { onMode(k: 'pH' | 'mV'): void }) {
   return (
     <View style={ISLAND_PARENT}>
       <View style={styles.head}>
         <View style={styles.headText}>
-          <Text variant="label" tone="muted">
-            {kind ? `${kind === 'checkpoint' ? 'Burette reading' : 'Meter reading'} for the mark at` : 'No mark waiting'}
-          </Text>
-          {/* One element either way (a tap updates it rather than swapping it). */}
-          <Text variant="heading" numeric tone={timeS === null ? 'muted' : 'ink'} testID={timeS === null ? undefined : 'active-mark-time'}>
-            {timeS === null ? '--:--.-' : formatClock(timeS)}
-          </Text>
+          <HeadLabel />
+          <HeadTime />
         </View>
-        <ModeSwitch hidden={kind === 'checkpoint'} value={readingMode} onChange={onMode} />
+        <LiveModeSwitch onChange={onMode} />
       </View>
     </View>
   );
 });
+
+function HeadLabel() {
+  const { kind } = useContext(HeadContext);
+  return <HeadLabelText kind={kind} />;
+}
+
+const HeadLabelText = memo(function HeadLabelText({ kind }: { kind: HeadState['kind'] }) {
+  return (
+    <Text variant="label" tone="muted">
+      {kind ? `${kind === 'checkpoint' ? 'Burette reading' : 'Meter reading'} for the mark at` : 'No mark waiting'}
+    </Text>
+  );
+});
+
+function HeadTime() {
+  const { timeS } = useContext(HeadContext);
+  return (
+    // One element either way (a tap updates it rather than swapping it).
+    <Text variant="heading" numeric tone={timeS === null ? 'muted' : 'ink'} testID={timeS === null ? undefined : 'active-mark-time'}>
+      {timeS === null ? '--:--.-' : formatClock(timeS)}
+    </Text>
+  );
+}
+
+function LiveModeSwitch({ onChange }: { onChange(k: 'pH' | 'mV'): void }) {
+  const { kind, readingMode } = useContext(HeadContext);
+  return <ModeSwitch hidden={kind === 'checkpoint'} value={readingMode} onChange={onChange} />;
+}
 
 // pH or mV: kept mounted (hidden for a checkpoint) and memoised, so the heading's changes do not re-render it.
 const ModeSwitch = memo(function ModeSwitch({ hidden, value, onChange }: { hidden: boolean; value: 'pH' | 'mV'; onChange(k: 'pH' | 'mV'): void }) {
@@ -187,19 +257,45 @@ const ModeSwitch = memo(function ModeSwitch({ hidden, value, onChange }: { hidde
   );
 });
 
-const EntryDisplay = memo(function EntryDisplay({ text, unit, error, mvWithoutCalibration }: { text: string; unit: string; error: string | null; mvWithoutCalibration: boolean }) {
+const EntryDisplay = memo(function EntryDisplay() {
   return (
     <>
       <View style={ISLAND_PARENT}>
-        <View style={[styles.display, error ? styles.displayError : null]} testID="entry-display" accessibilityLabel={`Typed ${text || 'nothing'} ${unit}`}>
-          <Text style={styles.displayText} numeric>
-            {text || ' '}
-          </Text>
-          <Text variant="heading" tone="muted">
-            {unit}
-          </Text>
-        </View>
+        <DisplayBox />
       </View>
+      <DisplayNotes />
+    </>
+  );
+});
+
+function DisplayBox() {
+  const { text, unit, error } = useContext(DisplayContext);
+  return (
+    <View style={[styles.display, error ? styles.displayError : null]} testID="entry-display" accessibilityLabel={`Typed ${text || 'nothing'} ${unit}`}>
+      <Text style={styles.displayText} numeric>
+        {text || ' '}
+      </Text>
+      <UnitText unit={unit} />
+    </View>
+  );
+}
+
+const UnitText = memo(function UnitText({ unit }: { unit: string }) {
+  return (
+    <Text variant="heading" tone="muted">
+      {unit}
+    </Text>
+  );
+});
+
+function DisplayNotes() {
+  const { error, mvWithoutCalibration } = useContext(DisplayContext);
+  return <DisplayNotesText error={error} mvWithoutCalibration={mvWithoutCalibration} />;
+}
+
+const DisplayNotesText = memo(function DisplayNotesText({ error, mvWithoutCalibration }: { error: string | null; mvWithoutCalibration: boolean }) {
+  return (
+    <>
       {mvWithoutCalibration ? (
         <Text variant="caption" tone="warn" testID="mv-warning">
           No electrode calibration on this run: the value is kept in mV with no pH, and the analysis leaves it out.
