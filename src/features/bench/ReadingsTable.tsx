@@ -53,7 +53,7 @@ export const ReadingsTable = memo(function ReadingsTable({ readings, checkpoints
         </View>
       </View>
       {total > limit && !showAll ? <ShowAll total={total} onPress={onShowAll} /> : null}
-      {total === 0 ? <NoRows savingFrom={savingFrom} /> : null}
+      {total === 0 ? (savingFrom ? <NoRowsLive rs={savingFrom} /> : <NoRowsNote />) : null}
       <TableNote />
     </View>
   );
@@ -86,10 +86,6 @@ const TableNote = memo(function TableNote() {
 });
 
 // "No readings yet", gone as soon as a first value is being saved.
-const NoRows = memo(function NoRows({ savingFrom }: { savingFrom?: RunStore }) {
-  return savingFrom ? <NoRowsLive rs={savingFrom} /> : <NoRowsNote />;
-});
-
 function NoRowsLive({ rs }: { rs: RunStore }) {
   return useStore(rs, (s) => s.unsaved.length > 0) ? null : <NoRowsNote />;
 }
